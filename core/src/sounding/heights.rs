@@ -1,0 +1,303 @@
+//! Heights from the hypsometric equation, and the radiosonde's own consistency check.
+
+use heapless::Vec;
+
+use super::profile::{Profile, MAX_LEVELS};
+use super::thermo::LevelThermo;
+use crate::constants::{G0, R_DRY};
+use crate::error::{Error, Result};
+
+/// Default tolerance of the height check, m: a reported height that differs from the
+/// hypsometric one by more than this is flagged (common practice for radiosonde
+/// consistency checks; our default).
+pub const DEFAULT_HEIGHT_TOLERANCE_M: f64 = 20.0;
+
+/// Where the integration started.
+#[derive(Debug, Clone, Copy, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize, serde::Deserialize))]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub enum HeightStart {
+    /// At the lowest level, whose height the profile gives.
+    ReportedSurface,
+    /// At the lowest level, placed at the station elevation.
+    StationElevation,
+    /// At the lowest level that has a reported height (index from the ground).
+    LowestReported {
+        /// Index of that level.
+        index: u16,
+    },
+}
+
+/// Hypsometric heights of every level and their comparison with the reported ones.
+#[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize, serde::Deserialize))]
+pub struct Heights {
+    /// Height integrated from the start level, gpm; `None` where the temperature needed
+    /// to reach the level is missing.
+    pub computed_m: Vec<Option<f64>, MAX_LEVELS>,
+    /// Best height of each level: the reported one where there is one, else the computed.
+    pub best_m: Vec<Option<f64>, MAX_LEVELS>,
+    /// Where the integration started.
+    pub start: HeightStart,
+    /// Tolerance of the check, m.
+    pub tolerance_m: f64,
+    /// Number of levels whose reported height is off by more than the tolerance.
+    pub flagged: u16,
+    /// The level with the largest |reported − computed|, and that difference, m.
+    pub worst: Option<(u16, f64)>,
+}
+
+impl Heights {
+    /// Reported minus computed height of level `i`, m, where both exist.
+    pub fn difference_m(&self, profile: &Profile, i: usize) -> Option<f64> {
+        let reported = profile.levels().get(i)?.height_m?;
+        let computed = (*self.computed_m.get(i)?)?;
+        Some(reported - computed)
+    }
+
+    /// Levels that have a best height and a value of `get`, as (height m, value), ground up.
+    pub fn samples<'a>(
+        &'a self,
+        profile: &'a Profile,
+        get: impl Fn(&super::Level) -> Option<f64> + 'a,
+    ) -> impl Iterator<Item = (f64, f64)> + 'a {
+        profile
+            .levels()
+            .iter()
+            .zip(self.best_m.iter())
+            .filter_map(move |(l, z)| Some(((*z)?, get(l)?)))
+    }
+
+    /// Lowest and highest heights, m, at which `get` has a value.
+    pub fn span(
+        &self,
+        profile: &Profile,
+        get: impl Fn(&super::Level) -> Option<f64>,
+    ) -> Option<(f64, f64)> {
+        let mut it = self.samples(profile, get);
+        let first = it.next()?.0;
+        let last = it.last().map_or(first, |s| s.0);
+        Some((first, last))
+    }
+
+    /// The value of `get` at height `z_m`, linear in height between the two levels
+    /// around it that have a value (`None` outside them).
+    pub fn value_at(
+        &self,
+        profile: &Profile,
+        z_m: f64,
+        get: impl Fn(&super::Level) -> Option<f64>,
+    ) -> Option<f64> {
+        let mut below: Option<(f64, f64)> = None;
+        for (z, v) in self.samples(profile, get) {
+            if z == z_m {
+                return Some(v);
+            }
+            if z > z_m {
+                let (zb, vb) = below?;
+                return Some(vb + (v - vb) * (z_m - zb) / (z - zb));
+            }
+            below = Some((z, v));
+        }
+        None
+    }
+
+    /// Whether level `i` fails the check.
+    pub fn is_flagged(&self, profile: &Profile, i: usize) -> bool {
+        self.difference_m(profile, i)
+            .is_some_and(|d| libm::fabs(d) > self.tolerance_m)
+    }
+}
+
+/// Virtual temperature of every level, interpolated linearly in ln p across levels
+/// without a temperature; `None` outside the levels that have one.
+fn virtual_temperatures(profile: &Profile) -> Vec<Option<f64>, MAX_LEVELS> {
+    let levels = profile.levels();
+    let mut tv: Vec<Option<f64>, MAX_LEVELS> = levels
+        .iter()
+        .map(|l| LevelThermo::of(l).virtual_temperature_k)
+        .collect();
+    for i in 0..levels.len() {
+        if tv[i].is_some() {
+            continue;
+        }
+        let below = (0..i).rev().find(|&k| tv[k].is_some());
+        let above = (i + 1..levels.len()).find(|&k| tv[k].is_some());
+        if let (Some(b), Some(a)) = (below, above) {
+            let (lb, la, li) = (
+                libm::log(levels[b].pressure_pa),
+                libm::log(levels[a].pressure_pa),
+                libm::log(levels[i].pressure_pa),
+            );
+            if let (Some(tb), Some(ta)) = (tv[b], tv[a]) {
+                tv[i] = Some(tb + (ta - tb) * (li - lb) / (la - lb));
+            }
+        }
+    }
+    tv
+}
+
+/// Thickness between two levels, gpm, by the hypsometric equation with the mean virtual
+/// temperature of the layer: Z2 − Z1 = (Rd/g0) T̄v ln(p1/p2) (FIELD-NOTES §6; exact where
+/// Tv is linear in ln p).
+pub fn thickness_m(p1_pa: f64, tv1_k: f64, p2_pa: f64, tv2_k: f64) -> f64 {
+    R_DRY / G0 * 0.5 * (tv1_k + tv2_k) * libm::log(p1_pa / p2_pa)
+}
+
+/// Integrate the hypsometric equation through `profile` and compare with the reported
+/// heights.
+///
+/// The integration starts at the lowest level: at its reported height, or else at
+/// `elevation_m` (the station elevation; the profile's own if `None`), or else at the
+/// lowest level with a reported height, from which it runs both ways.
+pub fn heights(profile: &Profile, elevation_m: Option<f64>, tolerance_m: f64) -> Result<Heights> {
+    let levels = profile.levels();
+    if levels.is_empty() {
+        return Err(Error::NoData {
+            what: "sounding levels",
+        });
+    }
+    crate::error::in_range("height tolerance", tolerance_m, 0.0, 10_000.0)?;
+    let elevation = elevation_m.or(profile.station.elevation_m);
+    let (start_index, start_height, start) = if let Some(z) = levels[0].height_m {
+        (0, z, HeightStart::ReportedSurface)
+    } else if let Some(z) = elevation {
+        crate::error::in_range("station elevation", z, -500.0, 9000.0)?;
+        (0, z, HeightStart::StationElevation)
+    } else if let Some((i, z)) = levels
+        .iter()
+        .enumerate()
+        .find_map(|(i, l)| l.height_m.map(|z| (i, z)))
+    {
+        (i, z, HeightStart::LowestReported { index: i as u16 })
+    } else {
+        return Err(Error::NoData {
+            what: "a height or a station elevation to start the height integration",
+        });
+    };
+
+    let tv = virtual_temperatures(profile);
+    let mut computed: Vec<Option<f64>, MAX_LEVELS> = levels.iter().map(|_| None).collect();
+    computed[start_index] = Some(start_height);
+    for i in start_index + 1..levels.len() {
+        computed[i] = match (computed[i - 1], tv[i - 1], tv[i]) {
+            (Some(z), Some(t1), Some(t2)) => {
+                Some(z + thickness_m(levels[i - 1].pressure_pa, t1, levels[i].pressure_pa, t2))
+            }
+            _ => None,
+        };
+    }
+    for i in (0..start_index).rev() {
+        computed[i] = match (computed[i + 1], tv[i + 1], tv[i]) {
+            (Some(z), Some(t1), Some(t2)) => {
+                Some(z - thickness_m(levels[i].pressure_pa, t2, levels[i + 1].pressure_pa, t1))
+            }
+            _ => None,
+        };
+    }
+
+    let best: Vec<Option<f64>, MAX_LEVELS> = levels
+        .iter()
+        .zip(computed.iter())
+        .map(|(l, c)| l.height_m.or(*c))
+        .collect();
+    let mut out = Heights {
+        computed_m: computed,
+        best_m: best,
+        start,
+        tolerance_m,
+        flagged: 0,
+        worst: None,
+    };
+    for i in 0..levels.len() {
+        if let Some(d) = out.difference_m(profile, i) {
+            if libm::fabs(d) > tolerance_m {
+                out.flagged += 1;
+            }
+            if out.worst.is_none_or(|(_, w)| libm::fabs(d) > libm::fabs(w)) {
+                out.worst = Some((i as u16, d));
+            }
+        }
+    }
+    Ok(out)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::sounding::profile::{Level, StationInfo};
+    use approx::assert_relative_eq;
+
+    fn isothermal(t_k: f64) -> Profile {
+        let mut p = Profile::new(StationInfo::default());
+        for hpa in [1000.0, 850.0, 700.0, 500.0] {
+            p.push(Level {
+                temperature_k: Some(t_k),
+                ..Level::at_pressure(hpa * 100.0)
+            })
+            .unwrap();
+        }
+        p
+    }
+
+    #[test]
+    fn isothermal_thickness_1000_to_500() {
+        // FIELD-NOTES §6 (computed): 273.15 K isothermal, 1000 to 500 hPa: 5542 m.
+        let h = heights(&isothermal(273.15), Some(0.0), 20.0).unwrap();
+        let z500 = h.computed_m[3].unwrap();
+        assert!((z500 - 5542.0).abs() < 1.0, "{z500}");
+        assert_eq!(h.start, HeightStart::StationElevation);
+        assert_eq!(h.flagged, 0);
+    }
+
+    #[test]
+    fn a_wrong_reported_height_is_flagged() {
+        let mut p = isothermal(273.15);
+        let mut q = Profile::new(StationInfo::default());
+        for (i, l) in p.levels().iter().enumerate() {
+            let mut l = *l;
+            if i == 0 {
+                l.height_m = Some(0.0);
+            }
+            if i == 3 {
+                // 60 m too high: a typical garbled or mis-coded height.
+                l.height_m = Some(5542.0 + 60.0);
+            }
+            q.push(l).unwrap();
+        }
+        p = q;
+        let h = heights(&p, None, DEFAULT_HEIGHT_TOLERANCE_M).unwrap();
+        assert_eq!(h.start, HeightStart::ReportedSurface);
+        assert_eq!(h.flagged, 1);
+        let (i, d) = h.worst.unwrap();
+        assert_eq!(i, 3);
+        assert_relative_eq!(d, 60.0, epsilon = 1.0);
+        assert!(h.is_flagged(&p, 3) && !h.is_flagged(&p, 2));
+        assert_eq!(h.best_m[3], Some(5602.0));
+    }
+
+    #[test]
+    fn integration_runs_down_from_the_lowest_reported_height() {
+        let src = isothermal(250.0);
+        let mut p = Profile::new(StationInfo::default());
+        for (i, l) in src.levels().iter().enumerate() {
+            let mut l = *l;
+            if i == 2 {
+                l.height_m = Some(3000.0);
+            }
+            p.push(l).unwrap();
+        }
+        let h = heights(&p, None, 20.0).unwrap();
+        assert_eq!(h.start, HeightStart::LowestReported { index: 2 });
+        let z0 = h.computed_m[0].unwrap();
+        let expected = 3000.0 - R_DRY / G0 * 250.0 * libm::log(1000.0 / 700.0);
+        assert_relative_eq!(z0, expected, epsilon = 1e-6);
+    }
+
+    #[test]
+    fn no_start_is_an_error() {
+        let p = isothermal(260.0);
+        assert!(matches!(heights(&p, None, 20.0), Err(Error::NoData { .. })));
+        assert!(heights(&Profile::default(), Some(0.0), 20.0).is_err());
+    }
+}

@@ -1,0 +1,20 @@
+//! # leeward-board-logic
+//!
+//! The parts of the board binary that need no hardware, kept apart so that they build and
+//! test on the host (`cargo test -p leeward-board-logic --target <host triple>` inside
+//! `firmware/board/`): the board crate only wires them to pins and the SPI peripheral.
+//!
+//! | module | what it holds |
+//! |---|---|
+//! | [`keypad`] | the 4×5 key matrix: key map, debouncer, press events as [`leeward_firmware::Key`] |
+//! | [`memlcd`] | framing for a 400×240 memory-in-pixel display: changed lines only, VCOM |
+#![no_std]
+#![forbid(unsafe_code)]
+#![warn(missing_docs)]
+#![cfg_attr(
+    not(test),
+    deny(clippy::unwrap_used, clippy::expect_used, clippy::panic)
+)]
+
+pub mod keypad;
+pub mod memlcd;

@@ -1,0 +1,301 @@
+//! # leeward-board
+//!
+//! leeward on the handheld: an STM32F411CE (Cortex-M4F) driving a 400×240 memory-in-pixel
+//! display over SPI1 and reading a 4×5 key matrix. The behaviour is all in
+//! `leeward-firmware`; this binary maps keys to [`leeward_firmware::Key`], renders into a
+//! [`FrameBuffer`] and sends the changed lines. The hardware-free parts (debouncing, key
+//! map, the display's framing) live in `leeward-board-logic` and are tested on the host.
+//!
+//! Pins (docs/board.md has the wiring): display SCK PA5, MOSI PA7, SCS PA4 (active high),
+//! DISP PB0, EXTCOMIN and EXTMODE tied low; keypad rows PB12–PB15 (open drain), columns
+//! PB5–PB9 (pull-up, EXTI9_5).
+//!
+//! The loop sleeps (WFI) whenever there is nothing to do. While no key is held the rows
+//! are driven low and a key press pulls its column low, which raises EXTI9_5 and wakes the
+//! core; it then scans every 5 ms (TIM2) until the debouncer reports all keys released,
+//! and sleeps on the key interrupt again. TIM5 wakes it once a second to invert the
+//! display's VCOM.
+#![no_std]
+#![no_main]
+#![deny(clippy::unwrap_used, clippy::expect_used, clippy::panic)]
+
+use core::sync::atomic::{AtomicBool, Ordering};
+
+use defmt_rtt as _;
+use embedded_hal::delay::DelayNs;
+use embedded_hal::digital::OutputPin;
+use embedded_hal::spi::SpiBus;
+use panic_probe as _;
+use stm32f4xx_hal::{
+    gpio::{AnyPin, Edge, ExtiPin, Input, OpenDrain, Output},
+    pac::{self, interrupt, Interrupt, NVIC},
+    prelude::*,
+    rcc::Config,
+    spi::{Mode, Phase, Polarity},
+    timer::Event,
+};
+
+use leeward_board_logic::keypad::{self, Debouncer, COLS, ROWS};
+use leeward_board_logic::memlcd::{timing, MemoryLcd};
+use leeward_firmware::{framebuffer::FrameBuffer, storage::MemStorage, App, Effect};
+
+/// EXTI lines of the keypad columns PB5–PB9.
+const COL_EXTI_LINES: u32 = 0b11_1110_0000;
+/// Matrix scan rate while a key is held or settling, Hz (5 ms; see keypad::STABLE_SCANS).
+const SCAN_HZ: u32 = 200;
+/// Core cycles for a row to settle through the column pull-ups (5 µs at 16 MHz).
+const ROW_SETTLE_CYCLES: u32 = 80;
+
+static KEY_EDGE: AtomicBool = AtomicBool::new(false);
+static SCAN_TICK: AtomicBool = AtomicBool::new(false);
+static VCOM_TICK: AtomicBool = AtomicBool::new(false);
+
+#[interrupt]
+fn EXTI9_5() {
+    // SAFETY: writing ones to EXTI_PR clears only the column lines' pending bits; no other
+    // code writes PR while this handler can run (main masks the lines before touching it).
+    unsafe { (*pac::EXTI::ptr()).pr().write(|w| w.bits(COL_EXTI_LINES)) };
+    KEY_EDGE.store(true, Ordering::Release);
+}
+
+#[interrupt]
+fn TIM2() {
+    // SAFETY: clears TIM2's update flag (write 0 to clear); main never writes TIM2_SR.
+    unsafe { (*pac::TIM2::ptr()).sr().write(|w| w.bits(0)) };
+    SCAN_TICK.store(true, Ordering::Release);
+}
+
+#[interrupt]
+fn TIM5() {
+    // SAFETY: as for TIM2, on TIM5.
+    unsafe { (*pac::TIM5::ptr()).sr().write(|w| w.bits(0)) };
+    VCOM_TICK.store(true, Ordering::Release);
+}
+
+/// Stop with a message in the log (no panic: the device just waits for a reset).
+fn halt(why: &str) -> ! {
+    defmt::error!("halted: {}", why);
+    loop {
+        cortex_m::asm::wfi();
+    }
+}
+
+/// The display on any embedded-hal 1.0 SPI bus, select pin and delay.
+struct Panel<S, P, D> {
+    spi: S,
+    scs: P,
+    delay: D,
+    lcd: MemoryLcd,
+}
+
+impl<S: SpiBus<u8>, P: OutputPin, D: DelayNs> Panel<S, P, D> {
+    /// One chip-select frame around `send` (the panel's select is active high).
+    fn frame<R>(&mut self, send: impl FnOnce(&mut S, &mut MemoryLcd) -> R) -> R {
+        // A GPIO write on this chip cannot fail; the Results are the trait's.
+        let _ = self.scs.set_high();
+        self.delay.delay_us(timing::CS_SETUP_US);
+        let r = send(&mut self.spi, &mut self.lcd);
+        let _ = self.spi.flush();
+        self.delay.delay_us(timing::CS_HOLD_US);
+        let _ = self.scs.set_low();
+        r
+    }
+
+    fn command(&mut self, make: impl FnOnce(&mut MemoryLcd) -> [u8; 2]) {
+        if self.frame(|spi, lcd| spi.write(&make(lcd))).is_err() {
+            defmt::warn!("display command failed");
+        }
+    }
+
+    /// Send the lines that changed since the last flush.
+    fn flush(&mut self, fb: &mut FrameBuffer) {
+        if fb.dirty_count() == 0 {
+            return;
+        }
+        match self.frame(|spi, lcd| lcd.flush(fb, |b| spi.write(b))) {
+            Ok(n) => defmt::debug!("sent {} lines", n),
+            Err(_) => defmt::warn!("display write failed; lines kept for the next flush"),
+        }
+    }
+}
+
+type Row = AnyPin<Output<OpenDrain>>;
+type Col = AnyPin<Input>;
+
+/// One pass over the matrix: bit `row * COLS + col` set for a key that reads pressed.
+fn scan(rows: &mut [Row; ROWS], cols: &[Col; COLS]) -> u32 {
+    let mut raw = 0;
+    for row in rows.iter_mut() {
+        row.set_high(); // open drain: released
+    }
+    for (r, row) in rows.iter_mut().enumerate() {
+        row.set_low();
+        cortex_m::asm::delay(ROW_SETTLE_CYCLES);
+        for (c, col) in cols.iter().enumerate() {
+            if col.is_low() {
+                raw |= keypad::bit(r, c).unwrap_or(0);
+            }
+        }
+        row.set_high();
+    }
+    raw
+}
+
+/// Drive every row low and re-arm the column interrupts, so any key wakes the core.
+fn arm_wake(rows: &mut [Row; ROWS], cols: &mut [Col; COLS], exti: &mut pac::EXTI) {
+    for row in rows.iter_mut() {
+        row.set_low();
+    }
+    cortex_m::asm::delay(ROW_SETTLE_CYCLES);
+    for col in cols.iter_mut() {
+        col.clear_interrupt_pending_bit();
+        col.enable_interrupt(exti);
+    }
+    // A key pressed while the lines were masked made no edge: look once.
+    if cols.iter().any(|c| c.is_low()) {
+        KEY_EDGE.store(true, Ordering::Release);
+    }
+}
+
+#[cortex_m_rt::entry]
+fn main() -> ! {
+    let (Some(dp), Some(cp)) = (pac::Peripherals::take(), cortex_m::Peripherals::take()) else {
+        halt("peripherals taken twice");
+    };
+    // 16 MHz from the internal oscillator, no PLL: ample for the UI, and the lowest
+    // running current.
+    let mut rcc = dp.RCC.freeze(Config::hsi().sysclk(16.MHz()));
+    let gpioa = dp.GPIOA.split(&mut rcc);
+    let gpiob = dp.GPIOB.split(&mut rcc);
+    let mut syscfg = dp.SYSCFG.constrain(&mut rcc);
+    let mut exti = dp.EXTI;
+    // Keep the bus clocked in WFI so the probe can read the RTT buffer while the core
+    // sleeps (costs sleep current: for the bench, not the field).
+    #[cfg(feature = "debug-sleep")]
+    dp.DBGMCU.cr().modify(|_, w| w.dbg_sleep().set_bit());
+
+    // Display: SPI mode 0, MSB first (memlcd reverses the bytes the panel reads LSB first).
+    let spi = dp.SPI1.spi(
+        (Some(gpioa.pa5), pac::SPI1::NoMiso, Some(gpioa.pa7)),
+        Mode {
+            polarity: Polarity::IdleLow,
+            phase: Phase::CaptureOnFirstTransition,
+        },
+        (timing::SPI_MAX_HZ / 2).Hz(),
+        &mut rcc,
+    );
+    let scs = gpioa.pa4.into_push_pull_output();
+    let mut disp = gpiob.pb0.into_push_pull_output();
+    let delay = cp.SYST.delay(&rcc.clocks);
+    let mut panel = Panel {
+        spi,
+        scs,
+        delay,
+        lcd: MemoryLcd::new(),
+    };
+
+    // Keypad.
+    let mut rows: [Row; ROWS] = [
+        gpiob.pb12.into_open_drain_output().erase(),
+        gpiob.pb13.into_open_drain_output().erase(),
+        gpiob.pb14.into_open_drain_output().erase(),
+        gpiob.pb15.into_open_drain_output().erase(),
+    ];
+    let mut cols: [Col; COLS] = [
+        gpiob.pb5.into_pull_up_input().erase(),
+        gpiob.pb6.into_pull_up_input().erase(),
+        gpiob.pb7.into_pull_up_input().erase(),
+        gpiob.pb8.into_pull_up_input().erase(),
+        gpiob.pb9.into_pull_up_input().erase(),
+    ];
+    for col in cols.iter_mut() {
+        col.make_interrupt_source(&mut syscfg);
+        col.trigger_on_edge(&mut exti, Edge::Falling);
+    }
+
+    let mut scan_timer = dp.TIM2.counter_hz(&mut rcc);
+    scan_timer.listen(Event::Update);
+    let mut vcom_timer = dp.TIM5.counter_hz(&mut rcc);
+    vcom_timer.listen(Event::Update);
+    if vcom_timer
+        .start((1000 / timing::VCOM_PERIOD_MS).Hz())
+        .is_err()
+    {
+        defmt::warn!("VCOM timer did not start");
+    }
+
+    // Settings live in RAM until the flash storage arrives (see docs/board.md).
+    let mut storage = MemStorage::new();
+    let Some(app) = cortex_m::singleton!(: App = App::power_on(&mut storage)) else {
+        halt("app already made");
+    };
+    let Some(fb) = cortex_m::singleton!(: FrameBuffer = FrameBuffer::new()) else {
+        halt("frame buffer already made");
+    };
+
+    panel.command(|lcd| lcd.clear_command());
+    disp.set_high();
+    if app.render(fb).is_err() {
+        defmt::warn!("first render failed");
+    }
+    panel.flush(fb);
+
+    let mut debouncer = Debouncer::new();
+    let mut scanning = false;
+    arm_wake(&mut rows, &mut cols, &mut exti);
+    // SAFETY: the handlers above touch only their own flags and pending bits.
+    unsafe {
+        NVIC::unmask(Interrupt::EXTI9_5);
+        NVIC::unmask(Interrupt::TIM2);
+        NVIC::unmask(Interrupt::TIM5);
+    }
+    defmt::info!("leeward ready");
+
+    loop {
+        if VCOM_TICK.swap(false, Ordering::AcqRel) {
+            panel.command(|lcd| lcd.toggle_vcom());
+        }
+        if KEY_EDGE.swap(false, Ordering::AcqRel) && !scanning {
+            for col in cols.iter_mut() {
+                col.disable_interrupt(&mut exti);
+            }
+            if scan_timer.start(SCAN_HZ.Hz()).is_err() {
+                defmt::warn!("scan timer did not start");
+            }
+            scanning = true;
+            SCAN_TICK.store(true, Ordering::Release); // first scan now
+        }
+        if scanning && SCAN_TICK.swap(false, Ordering::AcqRel) {
+            let mut redraw = false;
+            for key in debouncer.update(scan(&mut rows, &cols)) {
+                let effect = app.handle(key);
+                defmt::debug!("{} -> {}", key, effect);
+                if app.apply(effect, &mut storage).is_err() {
+                    defmt::warn!("settings not stored");
+                }
+                redraw |= effect != Effect::Nothing;
+            }
+            if redraw {
+                if app.render(fb).is_err() {
+                    defmt::warn!("render failed");
+                }
+                panel.flush(fb);
+            }
+            if debouncer.is_idle() {
+                let _ = scan_timer.cancel();
+                scanning = false;
+                arm_wake(&mut rows, &mut cols, &mut exti);
+            }
+        }
+        // Check the flags with interrupts off, so none can slip in between the check and
+        // the WFI; a pending interrupt still ends the WFI.
+        cortex_m::interrupt::free(|_| {
+            let busy = KEY_EDGE.load(Ordering::Acquire)
+                || VCOM_TICK.load(Ordering::Acquire)
+                || (scanning && SCAN_TICK.load(Ordering::Acquire));
+            if !busy {
+                cortex_m::asm::wfi();
+            }
+        });
+    }
+}

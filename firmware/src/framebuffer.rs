@@ -1,0 +1,273 @@
+//! A 400×240 one-bit frame buffer that remembers which display lines changed.
+//!
+//! Memory-in-pixel displays take whole lines over SPI; sending only the lines that changed
+//! since the last flush saves time and power. The buffer keeps a copy of what the display
+//! was last sent, so a line counts as changed only if its pixels differ from that copy:
+//! the app may clear and redraw the whole screen on every key press and the driver still
+//! sends only what differs. (The copy costs 12 000 bytes of RAM; a per-line hash would be
+//! smaller but could, rarely, miss a change.)
+//!
+//! `BinaryColor::On` is ink (a dark pixel), `Off` is the background; the driver decides the
+//! polarity on the wire.
+
+use embedded_graphics::pixelcolor::BinaryColor;
+use embedded_graphics::prelude::*;
+use embedded_graphics::primitives::Rectangle;
+
+/// Display width, pixels.
+pub const WIDTH: usize = 400;
+/// Display height, pixels (lines).
+pub const HEIGHT: usize = 240;
+/// Bytes in one line (one bit per pixel, most significant bit leftmost).
+pub const LINE_BYTES: usize = WIDTH / 8;
+const DIRTY_WORDS: usize = HEIGHT.div_ceil(32);
+
+/// The frame buffer: 12 000 bytes of pixels, a copy of what the display holds, and
+/// two flags per line.
+pub struct FrameBuffer {
+    bits: [[u8; LINE_BYTES]; HEIGHT],
+    /// What the display was last sent.
+    sent: [[u8; LINE_BYTES]; HEIGHT],
+    /// Lines written since the last flush (only they can differ from `sent`).
+    touched: [u32; DIRTY_WORDS],
+    /// Lines to send whatever they hold (the display's contents are unknown).
+    stale: [u32; DIRTY_WORDS],
+}
+
+impl Default for FrameBuffer {
+    fn default() -> Self {
+        Self::new()
+    }
+}
+
+impl FrameBuffer {
+    /// A blank buffer with every line marked dirty, so the first flush sends the whole
+    /// screen (the display's contents at power-on are unknown).
+    pub const fn new() -> Self {
+        let mut stale = [u32::MAX; DIRTY_WORDS];
+        // Only lines that exist are stale.
+        let spare = DIRTY_WORDS * 32 - HEIGHT;
+        stale[DIRTY_WORDS - 1] = u32::MAX >> spare;
+        FrameBuffer {
+            bits: [[0; LINE_BYTES]; HEIGHT],
+            sent: [[0; LINE_BYTES]; HEIGHT],
+            touched: [0; DIRTY_WORDS],
+            stale,
+        }
+    }
+
+    fn flag(words: &[u32; DIRTY_WORDS], y: usize) -> bool {
+        words[y / 32] & (1 << (y % 32)) != 0
+    }
+
+    /// The pixel at (x, y); `None` outside the display.
+    pub fn pixel(&self, x: usize, y: usize) -> Option<BinaryColor> {
+        if x >= WIDTH || y >= HEIGHT {
+            return None;
+        }
+        let on = self.bits[y][x / 8] & (0x80 >> (x % 8)) != 0;
+        Some(BinaryColor::from(on))
+    }
+
+    /// The packed bits of line `y` (MSB leftmost); `None` past the bottom.
+    pub fn line(&self, y: usize) -> Option<&[u8; LINE_BYTES]> {
+        self.bits.get(y)
+    }
+
+    /// Whether line `y` differs from what the display was last sent.
+    pub fn is_dirty(&self, y: usize) -> bool {
+        y < HEIGHT
+            && (Self::flag(&self.stale, y)
+                || (Self::flag(&self.touched, y) && self.bits[y] != self.sent[y]))
+    }
+
+    /// How many lines differ from what the display was last sent.
+    pub fn dirty_count(&self) -> usize {
+        (0..HEIGHT).filter(|&y| self.is_dirty(y)).count()
+    }
+
+    /// Hand every changed line, top to bottom, to `send` (line number and its bits), then
+    /// mark all lines clean. Stops at the first error and keeps the unsent lines dirty.
+    pub fn flush<E>(
+        &mut self,
+        mut send: impl FnMut(u8, &[u8; LINE_BYTES]) -> Result<(), E>,
+    ) -> Result<usize, E> {
+        let mut sent = 0;
+        for y in 0..HEIGHT {
+            if self.is_dirty(y) {
+                // HEIGHT ≤ 255, so the line number fits a byte (the display's address).
+                send(y as u8, &self.bits[y])?;
+                self.sent[y] = self.bits[y];
+                self.stale[y / 32] &= !(1 << (y % 32));
+                sent += 1;
+            }
+            self.touched[y / 32] &= !(1 << (y % 32));
+        }
+        Ok(sent)
+    }
+
+    /// Take the buffer as what the display shows, without sending (after a full-screen
+    /// refresh elsewhere).
+    pub fn mark_clean(&mut self) {
+        self.sent = self.bits;
+        self.touched = [0; DIRTY_WORDS];
+        self.stale = [0; DIRTY_WORDS];
+    }
+
+    fn set(&mut self, x: usize, y: usize, on: bool) {
+        let mask = 0x80u8 >> (x % 8);
+        let byte = &mut self.bits[y][x / 8];
+        let new = if on { *byte | mask } else { *byte & !mask };
+        if new != *byte {
+            *byte = new;
+            self.touched[y / 32] |= 1 << (y % 32);
+        }
+    }
+}
+
+impl OriginDimensions for FrameBuffer {
+    fn size(&self) -> Size {
+        Size::new(WIDTH as u32, HEIGHT as u32)
+    }
+}
+
+impl DrawTarget for FrameBuffer {
+    type Color = BinaryColor;
+    type Error = core::convert::Infallible;
+
+    fn draw_iter<I>(&mut self, pixels: I) -> Result<(), Self::Error>
+    where
+        I: IntoIterator<Item = Pixel<Self::Color>>,
+    {
+        for Pixel(p, c) in pixels {
+            // Pixels off the display are dropped, as embedded-graphics expects of a target.
+            if let (Ok(x), Ok(y)) = (usize::try_from(p.x), usize::try_from(p.y)) {
+                if x < WIDTH && y < HEIGHT {
+                    self.set(x, y, c.is_on());
+                }
+            }
+        }
+        Ok(())
+    }
+
+    fn fill_solid(&mut self, area: &Rectangle, color: Self::Color) -> Result<(), Self::Error> {
+        // Whole bytes at a time: clearing the screen is the app's first step on every key.
+        let a = area.intersection(&self.bounding_box());
+        let Some(br) = a.bottom_right() else {
+            return Ok(());
+        };
+        let (x0, x1) = (a.top_left.x as usize, br.x as usize);
+        let on = color.is_on();
+        for y in a.top_left.y as usize..=br.y as usize {
+            let mut changed = false;
+            for bx in x0 / 8..=x1 / 8 {
+                let lo = if bx == x0 / 8 { x0 % 8 } else { 0 };
+                let hi = if bx == x1 / 8 { x1 % 8 } else { 7 };
+                // Bits lo..=hi of the byte, MSB = leftmost pixel.
+                let mask = (0xFFu8 >> lo) & (0xFFu8 << (7 - hi));
+                let byte = &mut self.bits[y][bx];
+                let new = if on { *byte | mask } else { *byte & !mask };
+                changed |= new != *byte;
+                *byte = new;
+            }
+            if changed {
+                self.touched[y / 32] |= 1 << (y % 32);
+            }
+        }
+        Ok(())
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use embedded_graphics::primitives::PrimitiveStyle;
+
+    #[test]
+    fn starts_all_dirty_and_flush_cleans() {
+        let mut fb = FrameBuffer::new();
+        assert_eq!(fb.dirty_count(), HEIGHT);
+        let mut lines = 0;
+        let n = fb
+            .flush(|_, _| -> Result<(), ()> {
+                lines += 1;
+                Ok(())
+            })
+            .unwrap();
+        assert_eq!((n, lines), (HEIGHT, HEIGHT));
+        assert_eq!(fb.dirty_count(), 0);
+    }
+
+    #[test]
+    fn only_changed_lines_are_dirty() {
+        let mut fb = FrameBuffer::new();
+        fb.mark_clean();
+        Rectangle::new(Point::new(10, 100), Size::new(50, 3))
+            .into_styled(PrimitiveStyle::with_fill(BinaryColor::On))
+            .draw(&mut fb)
+            .unwrap();
+        assert_eq!(fb.dirty_count(), 3);
+        assert!(fb.is_dirty(100) && fb.is_dirty(102) && !fb.is_dirty(103));
+        assert_eq!(fb.pixel(10, 100), Some(BinaryColor::On));
+        assert_eq!(fb.pixel(60, 100), Some(BinaryColor::Off));
+        fb.mark_clean();
+        // Drawing the same pixels again changes nothing.
+        Rectangle::new(Point::new(10, 100), Size::new(50, 3))
+            .into_styled(PrimitiveStyle::with_fill(BinaryColor::On))
+            .draw(&mut fb)
+            .unwrap();
+        assert_eq!(fb.dirty_count(), 0);
+        // Erasing and redrawing the same thing leaves the line as the display has it.
+        let r = Rectangle::new(Point::new(10, 100), Size::new(50, 3));
+        fb.fill_solid(&r, BinaryColor::Off).unwrap();
+        assert_eq!(fb.dirty_count(), 3);
+        fb.fill_solid(&r, BinaryColor::On).unwrap();
+        assert_eq!(fb.dirty_count(), 0);
+    }
+
+    #[test]
+    fn off_screen_pixels_are_dropped() {
+        let mut fb = FrameBuffer::new();
+        fb.mark_clean();
+        fb.draw_iter([
+            Pixel(Point::new(-1, 5), BinaryColor::On),
+            Pixel(Point::new(400, 5), BinaryColor::On),
+            Pixel(Point::new(5, 240), BinaryColor::On),
+            Pixel(Point::new(399, 239), BinaryColor::On),
+        ])
+        .unwrap();
+        assert_eq!(fb.dirty_count(), 1);
+        assert_eq!(fb.line(239).unwrap()[LINE_BYTES - 1], 0x01);
+        assert_eq!(fb.pixel(400, 0), None);
+    }
+
+    #[test]
+    fn fast_fill_matches_pixel_by_pixel() {
+        // Odd edges inside bytes, and a rectangle hanging off the screen.
+        for (x, y, w, h) in [
+            (3, 7, 13, 4),
+            (0, 0, 400, 1),
+            (390, 230, 30, 30),
+            (9, 9, 1, 1),
+        ] {
+            let r = Rectangle::new(Point::new(x, y), Size::new(w, h));
+            let mut fast = FrameBuffer::new();
+            fast.mark_clean();
+            fast.fill_solid(&r, BinaryColor::On).unwrap();
+            let mut slow = FrameBuffer::new();
+            slow.mark_clean();
+            slow.draw_iter(r.points().map(|p| Pixel(p, BinaryColor::On)))
+                .unwrap();
+            assert!(fast.bits == slow.bits, "{r:?}");
+            assert_eq!(fast.touched, slow.touched, "{r:?}");
+        }
+    }
+
+    #[test]
+    fn a_failed_flush_keeps_unsent_lines() {
+        let mut fb = FrameBuffer::new();
+        let r = fb.flush(|y, _| if y < 10 { Ok(()) } else { Err(y) });
+        assert_eq!(r, Err(10));
+        assert_eq!(fb.dirty_count(), HEIGHT - 10);
+    }
+}
