@@ -12,7 +12,7 @@
 //!       │                         ├─ Load set: stored station sets
 //!       │                         ├─ Add station
 //!       │                         └─ Compute ─ 4 result pages: wind, ζ_g, residuals, map
-//!       ├─ Sounding: summary of the demo ascent ─ 3 pages: column, Froude, barotropy
+//!       ├─ Sounding: summary of the demo ascent ─ 4 pages: column, Froude, barotropy, profile plot
 //!       ├─ Ridge crossing: form of 10 ─ 5 pages: lee trough, wave train, Froude,
 //!       │                               plan view, cross-section
 //!       ├─ Data: stored datasets ─ dataset ─┬─ View: summary page
@@ -140,7 +140,7 @@ pub enum Screen {
     StationEdit,
     /// Network results, page 0 to 3: wind, vorticity, residuals, map.
     NetworkResult(u8),
-    /// Sounding summary, page 0 to 2: column, Froude check, barotropy.
+    /// Sounding summary, page 0 to 3: column, Froude check, barotropy, profile plot.
     SoundingResult(u8),
     /// Ridge crossing: the input form.
     CrossingForm,
@@ -227,7 +227,7 @@ pub struct App {
 pub const CROSSING_PAGES: u8 = 5;
 
 /// Result pages of the Sounding task.
-pub const SOUNDING_PAGES: u8 = 3;
+pub const SOUNDING_PAGES: u8 = 4;
 
 /// Result pages of the Network task.
 pub const NETWORK_PAGES: u8 = 4;
@@ -1298,7 +1298,12 @@ impl App {
                 }
             }
             Screen::SoundingResult(n) => {
-                let titles = ["Sounding: column", "Sounding: ridge", "Sounding: shear"];
+                let titles = [
+                    "Sounding: column",
+                    "Sounding: ridge",
+                    "Sounding: shear",
+                    "Sounding: profile",
+                ];
                 let i = (n as usize).min(titles.len() - 1);
                 let tag = line(format_args!("{}/{}", i + 1, SOUNDING_PAGES));
                 p.title(titles[i], &tag)?;
@@ -1306,7 +1311,8 @@ impl App {
                     match i {
                         0 => pages::sounding_column(v, s).draw(&mut p)?,
                         1 => pages::sounding_froude(v, s).draw(&mut p)?,
-                        _ => pages::sounding_barotropy(v, s).draw(&mut p)?,
+                        2 => pages::sounding_barotropy(v, s).draw(&mut p)?,
+                        _ => crate::sounding::draw_profile(&mut p, v, s)?,
                     }
                 }
                 hint("LEFT/RIGHT page   BACK home")

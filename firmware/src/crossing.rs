@@ -7,6 +7,7 @@
 //! maps them to pixels (plain longitude and latitude, no projection physics).
 
 use crate::field::{FieldSpec, Kind};
+use crate::plot::{dashed_row, inside, polyline, Axis};
 use crate::settings::Settings;
 use crate::text::line;
 use crate::ui::{row_box, Align, Font, Inspect, Painter, BODY_TOP, BODY_W, LINE_H, MARGIN};
@@ -251,31 +252,6 @@ pub const SECTION_BOX: Rectangle = Rectangle::new(
     Size::new(BODY_W, 5 * LINE_H as u32 - 4),
 );
 
-/// A linear map of a value range onto pixels.
-#[derive(Debug, Clone, Copy)]
-struct Axis {
-    lo: f64,
-    hi: f64,
-    p0: i32,
-    p1: i32,
-}
-
-impl Axis {
-    fn at(&self, v: f64) -> i32 {
-        let t = if self.hi > self.lo {
-            (v - self.lo) / (self.hi - self.lo)
-        } else {
-            0.5
-        };
-        let t = if t.is_finite() {
-            t.clamp(-4.0, 5.0)
-        } else {
-            0.5
-        };
-        self.p0 + (t * (self.p1 - self.p0) as f64) as i32
-    }
-}
-
 /// Ranges of longitude and latitude covering both tracks, padded; latitude at least 1°.
 fn plan_ranges(v: &CrossingView) -> ((f64, f64), (f64, f64)) {
     let mut lon = (f64::INFINITY, f64::NEG_INFINITY);
@@ -320,31 +296,6 @@ fn lat_words(lat: f64) -> crate::text::Line {
     line(format_args!("{:.1}°{h}", lat.abs()))
 }
 
-/// Draw a polyline of the kept points, thick or thin, dashed (every other segment) or
-/// not, clipped to `area`.
-fn polyline<D, I>(
-    p: &mut Painter<'_, D, I>,
-    area: Rectangle,
-    pts: impl Iterator<Item = Point>,
-    width: u32,
-    dashed: bool,
-) -> core::result::Result<(), D::Error>
-where
-    D: DrawTarget<Color = BinaryColor>,
-    I: Inspect,
-{
-    let mut last: Option<Point> = None;
-    for (i, q) in pts.enumerate() {
-        if let Some(a) = last {
-            if !dashed || i % 2 == 0 {
-                p.line_in(area, a, q, width)?;
-            }
-        }
-        last = Some(q);
-    }
-    Ok(())
-}
-
 /// The plan-view plot alone, inside `area`: the no-ridge track thin and dashed, the
 /// ridge track thick, the ridge axis dotted. Nothing is inked outside `area`.
 pub fn plot_plan<D, I>(
@@ -357,10 +308,7 @@ where
     I: Inspect,
 {
     p.frame(area, 1)?;
-    let inner = Rectangle::new(
-        area.top_left + Point::new(1, 1),
-        area.size.saturating_sub(Size::new(2, 2)),
-    );
+    let inner = inside(area);
     let ((lo0, lo1), (la0, la1)) = plan_ranges(v);
     let x = Axis {
         lo: lo0,
@@ -483,10 +431,7 @@ where
     I: Inspect,
 {
     p.frame(area, 1)?;
-    let inner = Rectangle::new(
-        area.top_left + Point::new(1, 1),
-        area.size.saturating_sub(Size::new(2, 2)),
-    );
+    let inner = inside(area);
     let (top_m, zmax, len_km) = section_scales(v);
     let left = inner.top_left.x + 1;
     let right = inner.top_left.x + inner.size.width as i32 - 2;
@@ -532,17 +477,7 @@ where
     let yl = h.at(v.input.lid_m);
     p.line_in(inner, Point::new(left, yl), Point::new(right, yl), 1)?;
     // ζ = 0, dashed.
-    let y0 = z.at(0.0);
-    let mut c = left;
-    while c < right {
-        p.line_in(
-            inner,
-            Point::new(c, y0),
-            Point::new((c + 3).min(right), y0),
-            1,
-        )?;
-        c += 8;
-    }
+    dashed_row(p, inner, z.at(0.0))?;
     let zeta = pts
         .iter()
         .map(|k| Point::new(x.at(k.s_km as f64), z.at(k.zeta as f64)));
@@ -588,38 +523,8 @@ where
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::plot::testing::Ink;
     use leeward_core::demo;
-
-    /// Counts inked pixels inside and outside a box.
-    struct Ink {
-        area: Rectangle,
-        inside: usize,
-        outside: usize,
-    }
-    impl OriginDimensions for Ink {
-        fn size(&self) -> Size {
-            Size::new(400, 240)
-        }
-    }
-    impl DrawTarget for Ink {
-        type Color = BinaryColor;
-        type Error = core::convert::Infallible;
-        fn draw_iter<It: IntoIterator<Item = Pixel<BinaryColor>>>(
-            &mut self,
-            pixels: It,
-        ) -> core::result::Result<(), Self::Error> {
-            for Pixel(q, c) in pixels {
-                if c == BinaryColor::On {
-                    if self.area.contains(q) {
-                        self.inside += 1;
-                    } else {
-                        self.outside += 1;
-                    }
-                }
-            }
-            Ok(())
-        }
-    }
 
     fn view(speed: f64, dir: f64) -> CrossingView {
         compute(demo::crossing(speed, dir)).unwrap()
@@ -635,11 +540,7 @@ mod tests {
                 (Rectangle::new(Point::new(30, 40), Size::new(60, 30)), true),
                 (Rectangle::new(Point::new(30, 40), Size::new(60, 30)), false),
             ] {
-                let mut d = Ink {
-                    area,
-                    inside: 0,
-                    outside: 0,
-                };
+                let mut d = Ink::new(area);
                 let mut no = ();
                 let mut p = Painter::new(&mut d, &mut no);
                 if plan {

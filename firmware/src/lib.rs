@@ -16,10 +16,11 @@
 //! | [`network`] | the Network task's station editor, residual table and station map |
 //! | [`widgets`] | list, form, result page, notice |
 //! | [`pages`] | core results turned into result pages; the About texts |
+//! | [`plot`] | what the small plots share: axes and clipped lines |
 //! | [`ui`] | layout, fonts, the measuring [`ui::Painter`] |
 //! | [`framebuffer`] | 400×240 one-bit buffer with changed-line tracking |
 //! | [`settings`] | display units and latitude entry, unit conversions |
-//! | [`sounding`] | the Sounding task's summary of the current sounding |
+//! | [`sounding`] | the Sounding task: summary and profile plot of the current sounding |
 //! | [`storage`] | the storage trait and an in-memory implementation |
 //! | [`text`] | fixed-capacity strings and word wrapping |
 //!
@@ -52,6 +53,7 @@ pub mod framebuffer;
 pub mod key;
 pub mod network;
 pub mod pages;
+pub mod plot;
 pub mod settings;
 pub mod sounding;
 pub mod storage;

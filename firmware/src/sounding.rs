@@ -1,14 +1,23 @@
 //! The Sounding task: the summary of the current sounding (for now the demo ascent from
 //! Tessel Col, checked against the demo ridge), kept as the few core results the result
-//! pages show. The profile and the core's full summary (with a height per level) live on
-//! the stack only while the summary is made.
+//! pages show, and a thinned copy of the temperature profile for the profile plot. The
+//! profile and the core's full summary (with a height per level) live on the stack only
+//! while the summary is made.
 
+use crate::plot::{dashed_row, inside, polyline, Axis};
+use crate::settings::Settings;
+use crate::text::line;
+use crate::ui::{row_box, Align, Font, Inspect, Painter, BODY_TOP, BODY_W, LINE_H, MARGIN};
+use embedded_graphics::pixelcolor::BinaryColor;
+use embedded_graphics::prelude::*;
+use embedded_graphics::primitives::Rectangle;
 use leeward_core::demo;
 use leeward_core::sounding::barotropy::Barotropy;
 use leeward_core::sounding::lid::Lid;
 use leeward_core::sounding::ridge_flow::{RidgeCheck, RidgeFlow};
 use leeward_core::sounding::stability::Tropopauses;
 use leeward_core::sounding::summary::{summarise, Summary, SummaryOptions};
+use leeward_core::sounding::Profile;
 use leeward_core::{Error, Result};
 
 /// What the Sounding pages show, each part as the core returned it.
@@ -32,13 +41,86 @@ pub struct SoundingView {
     pub heights_worst_m: Option<f64>,
     /// Tolerance of the height check, m.
     pub height_tolerance_m: f64,
+    /// The temperature profile, thinned for the plot.
+    pub plot: PlotProfile,
+}
+
+/// Levels kept for the profile plot: more than a 100-pixel-high plot can show apart.
+pub const PLOT_LEVELS: usize = 64;
+/// Stable layers marked on the profile plot.
+pub const PLOT_LAYERS: usize = 4;
+
+/// One plotted level (f32: a pixel is tens of metres and tenths of a kelvin).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct PlotLevel {
+    /// Height, m above sea level.
+    pub height_m: f32,
+    /// Temperature, °C.
+    pub temperature_c: f32,
+    /// Dew point, °C.
+    pub dewpoint_c: Option<f32>,
+}
+
+/// The profile plot's data: levels ground up and the stable layers (base, top), m.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct PlotProfile {
+    /// Levels with a height and a temperature, ground up; beyond [`PLOT_LEVELS`] evenly
+    /// thinned, the lowest and highest always kept.
+    pub levels: heapless::Vec<PlotLevel, PLOT_LEVELS>,
+    /// The first stable layers below the tropopause, (base, top) in m.
+    pub stable_m: heapless::Vec<(f32, f32), PLOT_LAYERS>,
+}
+
+impl PlotProfile {
+    /// The plottable levels of `profile` with the summary's best heights.
+    pub fn of(profile: &Profile, s: &Summary) -> Self {
+        let mut all = 0usize;
+        let usable = |i: usize| -> Option<PlotLevel> {
+            let lv = profile.levels().get(i)?;
+            let z = (*s.heights.best_m.get(i)?)?;
+            let t = lv.temperature_k?;
+            (z.is_finite() && t.is_finite()).then_some(PlotLevel {
+                height_m: z as f32,
+                temperature_c: (t - 273.15) as f32,
+                dewpoint_c: lv.dewpoint_k.map(|d| (d - 273.15) as f32),
+            })
+        };
+        for i in 0..profile.levels().len() {
+            if usable(i).is_some() {
+                all += 1;
+            }
+        }
+        // The k-th kept level is usable level k (all − 1)/(PLOT_LEVELS − 1), rounded
+        // down: every level when they fit, else evenly spread with both ends kept.
+        let mut out = PlotProfile::default();
+        let keep = all.min(PLOT_LEVELS);
+        let mut k = 0usize;
+        let mut n = 0usize;
+        for i in 0..profile.levels().len() {
+            let Some(l) = usable(i) else { continue };
+            let next = if keep > 1 {
+                k * (all - 1) / (keep - 1)
+            } else {
+                0
+            };
+            if k < keep && n == next {
+                let _ = out.levels.push(l);
+                k += 1;
+            }
+            n += 1;
+        }
+        for r in s.stability.stable_layers.iter().take(PLOT_LAYERS) {
+            let _ = out.stable_m.push((r.base_m as f32, r.top_m as f32));
+        }
+        out
+    }
 }
 
 impl SoundingView {
     /// The parts of a core summary the pages show.
-    pub fn of(station: &str, s: &Summary) -> Self {
+    pub fn of(profile: &Profile, s: &Summary) -> Self {
         let mut id = heapless::String::new();
-        let _ = id.push_str(station);
+        let _ = id.push_str(&profile.station.id);
         SoundingView {
             station: id,
             tropopauses: s.tropopauses,
@@ -51,6 +133,7 @@ impl SoundingView {
             heights_flagged: s.heights.flagged,
             heights_worst_m: s.heights.worst.map(|(_, d)| d),
             height_tolerance_m: s.heights.tolerance_m,
+            plot: PlotProfile::of(profile, s),
         }
     }
 }
@@ -77,5 +160,267 @@ pub fn demo_options() -> SummaryOptions {
 pub fn demo_view() -> Result<SoundingView> {
     let profile = demo::sounding()?;
     let summary = summarise(&profile, &demo_options())?;
-    Ok(SoundingView::of(&profile.station.id, &summary))
+    Ok(SoundingView::of(&profile, &summary))
+}
+
+/// The profile plot's box, below two lines of scales.
+pub const PROFILE_BOX: Rectangle = Rectangle::new(
+    Point::new(MARGIN, BODY_TOP + 2 * LINE_H + 2),
+    Size::new(BODY_W, 6 * LINE_H as u32 - 4),
+);
+
+/// Plot ranges: (height bottom, top) in m and (temperature low, high) in °C. The height
+/// runs from the lowest level to 3 km above the tropopause (or the lid), within the
+/// profile; temperatures are rounded out to 10 °C.
+fn profile_ranges(v: &SoundingView) -> ((f64, f64), (f64, f64)) {
+    let lv = &v.plot.levels;
+    let bottom = lv.first().map_or(0.0, |l| l.height_m as f64);
+    let highest = lv.last().map_or(bottom + 1.0, |l| l.height_m as f64);
+    let mark = v
+        .tropopauses
+        .first
+        .map(|t| t.height_m)
+        .or(v.lid.as_ref().ok().map(|l| l.height_m));
+    let top = mark.map_or(highest, |m| (m + 3000.0).min(highest));
+    let top = if top > bottom + 500.0 {
+        top
+    } else {
+        bottom + 500.0
+    };
+    let mut lo = f64::INFINITY;
+    let mut hi = f64::NEG_INFINITY;
+    for l in lv.iter().filter(|l| (l.height_m as f64) <= top) {
+        for t in [Some(l.temperature_c), l.dewpoint_c].into_iter().flatten() {
+            lo = lo.min(t as f64);
+            hi = hi.max(t as f64);
+        }
+    }
+    if !(lo.is_finite() && hi.is_finite()) {
+        (lo, hi) = (-60.0, 20.0);
+    }
+    // At least 2 °C of room either side, so the curves stay clear of the frame.
+    let lo = libm::floor((lo - 2.0) / 10.0) * 10.0;
+    let hi = libm::ceil((hi + 2.0) / 10.0) * 10.0;
+    let hi = if hi > lo { hi } else { lo + 10.0 };
+    ((bottom, top), (lo, hi))
+}
+
+/// The profile plot alone, inside `area`: temperature thick, dew point thin,
+/// the tropopause and the lid as dashed lines with their names, and the stable
+/// layers as bars at the right edge. Nothing is inked outside `area`.
+pub fn plot_profile<D, I>(
+    p: &mut Painter<'_, D, I>,
+    v: &SoundingView,
+    area: Rectangle,
+) -> core::result::Result<(), D::Error>
+where
+    D: DrawTarget<Color = BinaryColor>,
+    I: Inspect,
+{
+    p.frame(area, 1)?;
+    let inner = inside(area);
+    let ((z0, z1), (t0, t1)) = profile_ranges(v);
+    let left = inner.top_left.x + 2;
+    let right = inner.top_left.x + inner.size.width as i32 - 3;
+    let z = Axis {
+        lo: z0,
+        hi: z1,
+        p0: inner.top_left.y + inner.size.height as i32 - 2,
+        p1: inner.top_left.y + 1,
+    };
+    // Room at the right for the stable-layer bars, at the left for the marks.
+    let t = Axis {
+        lo: t0,
+        hi: t1,
+        p0: left + 12,
+        p1: right - 8,
+    };
+    // 0 °C, dotted, where it is in range.
+    if t0 < 0.0 && t1 > 0.0 {
+        let x0 = t.at(0.0);
+        let mut y = inner.top_left.y;
+        while y < z.p0 {
+            p.line_in(inner, Point::new(x0, y), Point::new(x0, y), 1)?;
+            y += 4;
+        }
+    }
+    // The tropopause and the lid, each a dashed line with its word above it;
+    // one word for both when the lid is the tropopause.
+    let trop = v.tropopauses.first.map(|t| t.height_m);
+    let lid = v.lid.as_ref().ok().map(|l| l.height_m);
+    let same = matches!((trop, lid), (Some(a), Some(b)) if (a - b).abs() < 1.0);
+    // The words sit at the right, on the warm side, clear of the cold upper curves.
+    let marks = [
+        (trop, if same { "trop = lid" } else { "trop" }, 12),
+        (if same { None } else { lid }, "lid", 60),
+    ];
+    for (h, word, from_right) in marks {
+        if let Some(h) = h.filter(|h| (z0..=z1).contains(h)) {
+            let y = z.at(h);
+            dashed_row(p, inner, y)?;
+            let size = Font::Small.measure(word);
+            let x = right - from_right - size.width as i32;
+            let r = Rectangle::new(Point::new(x, y - 14), size);
+            if inner.contains(r.top_left) {
+                p.text(r, word, Font::Small, Align::Left, false)?;
+            }
+        }
+    }
+    for &(b, top) in &v.plot.stable_m {
+        let (yb, yt) = (z.at(b as f64), z.at(top as f64));
+        p.line_in(
+            inner,
+            Point::new(right - 2, yb),
+            Point::new(right - 2, yt),
+            4,
+        )?;
+    }
+    let lv = &v.plot.levels;
+    let dew = lv.iter().filter_map(|l| {
+        l.dewpoint_c
+            .map(|d| Point::new(t.at(d as f64), z.at(l.height_m as f64)))
+    });
+    polyline(p, inner, dew, 1, false)?;
+    let temp = lv
+        .iter()
+        .map(|l| Point::new(t.at(l.temperature_c as f64), z.at(l.height_m as f64)));
+    polyline(p, inner, temp, 3, false)
+}
+
+/// The profile page: the scales in two lines, then the plot.
+pub fn draw_profile<D, I>(
+    p: &mut Painter<'_, D, I>,
+    v: &SoundingView,
+    s: &Settings,
+) -> core::result::Result<(), D::Error>
+where
+    D: DrawTarget<Color = BinaryColor>,
+    I: Inspect,
+{
+    let hu = s.height;
+    let ((z0, z1), (t0, t1)) = profile_ranges(v);
+    let rows = [
+        line(format_args!(
+            "{:.0} to {:.0} {}; {t0:.0} to {t1:.0} °C",
+            hu.from_m(z0),
+            hu.from_m(z1),
+            hu.symbol()
+        )),
+        line(format_args!("thick temp, thin dew pt, bar stable")),
+    ];
+    for (r, text) in rows.iter().enumerate() {
+        p.text(
+            row_box(r, MARGIN, BODY_W),
+            text,
+            Font::Body,
+            Align::Left,
+            false,
+        )?;
+    }
+    plot_profile(p, v, PROFILE_BOX)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use leeward_core::sounding::{Level, StationInfo};
+
+    /// A 256-level ascent: 6.5 K/km (the standard atmosphere's lapse rate, US Standard
+    /// Atmosphere 1976) below 11 km, isothermal above, pressure with an 8 km scale height.
+    fn long_profile() -> Profile {
+        let mut p = Profile::new(StationInfo::default());
+        for i in 0..256 {
+            let z = i as f64 * 60.0;
+            let t = 288.15 - 0.0065 * z.min(11_000.0);
+            let _ = p.push(Level {
+                height_m: Some(z),
+                temperature_k: Some(t),
+                dewpoint_k: (i % 3 != 0).then_some(t - 5.0),
+                ..Level::at_pressure(101_325.0 * libm::exp(-z / 8000.0))
+            });
+        }
+        p
+    }
+
+    #[test]
+    fn a_long_profile_is_thinned_evenly_keeping_both_ends() {
+        let p = long_profile();
+        assert_eq!(p.len(), 256);
+        let s = summarise(&p, &SummaryOptions::default()).unwrap();
+        let plot = PlotProfile::of(&p, &s);
+        let lv = &plot.levels;
+        assert_eq!(lv.len(), PLOT_LEVELS);
+        assert_eq!(lv[0].height_m, 0.0);
+        assert_eq!(lv.last().unwrap().height_m, 255.0 * 60.0);
+        for w in lv.windows(2) {
+            assert!(w[1].height_m > w[0].height_m);
+            // Evenly: 255 steps over 63 gaps, so 4 or 5 levels (240 or 300 m) apart.
+            let d = w[1].height_m - w[0].height_m;
+            assert!(d == 240.0 || d == 300.0, "{d}");
+        }
+        // Every kept level is a level of the profile, with its temperature and dew point.
+        for l in lv.iter() {
+            let i = (l.height_m / 60.0).round() as usize;
+            let src = &p.levels()[i];
+            let t = src.temperature_k.unwrap() - 273.15;
+            assert!((l.temperature_c as f64 - t).abs() < 1e-4);
+            assert_eq!(l.dewpoint_c.is_some(), src.dewpoint_k.is_some());
+        }
+    }
+
+    #[test]
+    fn the_demo_ascent_is_plotted_whole() {
+        let p = demo::sounding().unwrap();
+        let s = summarise(&p, &demo_options()).unwrap();
+        let v = SoundingView::of(&p, &s);
+        let usable = p
+            .levels()
+            .iter()
+            .filter(|l| l.temperature_k.is_some())
+            .count();
+        assert_eq!(v.plot.levels.len(), usable);
+        // The stable layer capped near 3.5 km that the demo was made with.
+        assert!(
+            v.plot
+                .stable_m
+                .iter()
+                .any(|&(_, top)| (top as f64 - 3500.0).abs() < 100.0),
+            "{:?}",
+            v.plot.stable_m
+        );
+    }
+
+    #[test]
+    fn the_profile_plot_inks_nothing_outside_its_box() {
+        use crate::plot::testing::Ink;
+        let demo_p = demo::sounding().unwrap();
+        let long = long_profile();
+        let views = [
+            SoundingView::of(&demo_p, &summarise(&demo_p, &demo_options()).unwrap()),
+            SoundingView::of(
+                &long,
+                &summarise(&long, &SummaryOptions::default()).unwrap(),
+            ),
+        ];
+        let small = Rectangle::new(Point::new(30, 40), Size::new(60, 30));
+        for v in &views {
+            for area in [PROFILE_BOX, small] {
+                let mut d = Ink::new(area);
+                let mut no = ();
+                let mut p = Painter::new(&mut d, &mut no);
+                plot_profile(&mut p, v, area).unwrap();
+                assert_eq!(d.outside, 0, "ink outside {area:?}");
+                assert!(d.inside > 100, "little drawn in {area:?}");
+            }
+        }
+        // An empty profile draws its frame and nothing else, without a panic.
+        let mut empty = views[0].clone();
+        empty.plot = PlotProfile::default();
+        empty.tropopauses.first = None;
+        empty.lid = Err(leeward_core::Error::NoTropopause);
+        let mut d = Ink::new(PROFILE_BOX);
+        let mut no = ();
+        plot_profile(&mut Painter::new(&mut d, &mut no), &empty, PROFILE_BOX).unwrap();
+        assert_eq!(d.outside, 0);
+    }
 }

@@ -27,6 +27,7 @@ fn dump_screens() {
         ("sounding-1", &[Down, Down, Down, Ok]),
         ("sounding-2", &[Down, Down, Down, Ok, Right]),
         ("sounding-3", &[Down, Down, Down, Ok, Right, Right]),
+        ("sounding-4", &[Down, Down, Down, Ok, Right, Right, Right]),
         ("station-edit", &[Down, Down, Ok, Ok, Ok, Left, Up]),
         ("network-wind", &[Down, Down, Ok, Up, Ok]),
         ("network-zeta", &[Down, Down, Ok, Up, Ok, Right]),

@@ -10,6 +10,7 @@ use leeward_core::Error;
 use leeward_firmware::app::Screen;
 use leeward_firmware::framebuffer::{FrameBuffer, HEIGHT};
 use leeward_firmware::settings::{HeightUnit, LatEntry, Settings, WindUnit};
+use leeward_firmware::storage::MemStorage;
 use leeward_firmware::ui::Painter;
 use leeward_firmware::widgets::draw_notice;
 use leeward_firmware::{App, Key, Key::*};
@@ -224,6 +225,53 @@ fn tour() -> Vec<(&'static str, Vec<Key>)> {
         ("sounding column", vec![Down, Down, Down, Ok]),
         ("sounding ridge", vec![Down, Down, Down, Ok, Right]),
         ("sounding shear", vec![Down, Down, Down, Ok, Right, Right]),
+        (
+            "sounding profile",
+            vec![Down, Down, Down, Ok, Right, Right, Right],
+        ),
+    ]);
+    // Data (third from the bottom of the home menu) and the Network task's saving and
+    // loading; the tour's store starts with the demo set, as after a first power-on.
+    let data = vec![Up, Up, Up, Ok];
+    let dwith = |extra: &[Key]| {
+        let mut k = data.clone();
+        k.extend_from_slice(extra);
+        k
+    };
+    let nwith = |extra: &[Key]| {
+        let mut k = net.clone();
+        k.extend_from_slice(extra);
+        k
+    };
+    v.extend([
+        ("data list", data.clone()),
+        ("data item", dwith(&[Ok])),
+        ("data item last row", dwith(&[Ok, Up])),
+        ("data view", dwith(&[Ok, Ok])),
+        ("data rename", dwith(&[Ok, Down, Ok])),
+        (
+            "data rename typed",
+            dwith(&[Ok, Down, Ok, Digit(7), Delete, Digit(9)]),
+        ),
+        ("data rename done", dwith(&[Ok, Down, Ok, Digit(7), Ok])),
+        (
+            "data rename emptied",
+            dwith(&[Ok, Down, Ok, Delete, Delete, Delete, Delete, Ok]),
+        ),
+        ("data delete", dwith(&[Ok, Down, Down, Ok])),
+        ("data deleted, list empty", dwith(&[Ok, Down, Down, Ok, Ok])),
+        ("network save", nwith(&[Up, Up, Up, Up, Ok])),
+        (
+            "network save typed",
+            nwith(&[Up, Up, Up, Up, Ok, Digit(1), Digit(2)]),
+        ),
+        (
+            "network saved notice",
+            nwith(&[Up, Up, Up, Up, Ok, Digit(1), Digit(2), Ok]),
+        ),
+        ("network save taken", nwith(&[Up, Up, Up, Up, Ok, Ok])),
+        ("network load", nwith(&[Up, Up, Up, Ok])),
+        ("network loaded", nwith(&[Up, Up, Up, Ok, Ok])),
     ]);
     for rows in 0..6 {
         let mut k = net.clone();
@@ -265,8 +313,10 @@ fn every_screen_stays_on_the_display_and_in_its_boxes() {
     let mut seen = std::collections::HashSet::new();
     for s in all_settings() {
         for (name, keys) in tour() {
+            let mut st = MemStorage::new();
             let mut app = App::new(s);
-            press(&mut app, &keys);
+            app.open_store(&mut st);
+            press_stored(&mut app, &mut st, &keys);
             seen.insert(format!("{:?}", app.screen()));
             let shot = Shot::of(&app);
             shot.assert_clean(&format!("{name} with {s:?}"));
@@ -292,12 +342,20 @@ fn every_screen_stays_on_the_display_and_in_its_boxes() {
         Screen::SoundingResult(0),
         Screen::SoundingResult(1),
         Screen::SoundingResult(2),
+        Screen::SoundingResult(3),
         Screen::CrossingForm,
         Screen::CrossingResult(0),
         Screen::CrossingResult(1),
         Screen::CrossingResult(2),
         Screen::CrossingResult(3),
         Screen::CrossingResult(4),
+        Screen::DataList,
+        Screen::DataItem,
+        Screen::DataView,
+        Screen::DataRename,
+        Screen::DataDelete,
+        Screen::NetworkSave,
+        Screen::NetworkLoad,
         Screen::Settings,
         Screen::About(0),
         Screen::About(1),
@@ -567,6 +625,7 @@ fn sounding_pages_with_every_part_missing_stay_in_their_boxes() {
         heights_flagged: 65_535,
         heights_worst_m: Some(-99_999.0),
         height_tolerance_m: 20.0,
+        plot: Default::default(),
     };
     for s in all_settings() {
         let pages = [

@@ -697,8 +697,46 @@ fn sounding_summary_of_the_demo_ascent() {
     assert!(agrees(&turning, b.turning_deg), "{turning}");
     assert!(turning.ends_with(b.turning.word()));
     assert!(all_words(&shot).contains(b.verdict.statement()));
+
+    // Page 4: the profile plot. Its scales are the core's: from the ground to 3 km above
+    // the tropopause, temperatures rounded out to 10 °C.
     press(&mut app, &[Right]);
-    assert_eq!(app.screen(), Screen::SoundingResult(2), "three pages only");
+    assert_eq!(app.screen(), Screen::SoundingResult(3));
+    let shot = Shot::of(&app);
+    shot.assert_clean("sounding profile");
+    let ground = truth.heights.best_m[0].unwrap();
+    let top = tp.height_m + 3000.0;
+    let scales = &shot.texts[2].text;
+    assert!(
+        scales.starts_with(&format!("{ground:.0} to {top:.0} m; ")),
+        "{scales}"
+    );
+    let profile = demo::sounding().unwrap();
+    let temps = profile
+        .levels()
+        .iter()
+        .zip(&truth.heights.best_m)
+        .filter(|(_, z)| z.is_some_and(|z| z <= top))
+        .flat_map(|(l, _)| [l.temperature_k, l.dewpoint_k])
+        .flatten()
+        .map(|k| k - 273.15);
+    let (lo, hi) = temps.fold((f64::MAX, f64::MIN), |(a, b), t| (a.min(t), b.max(t)));
+    let (lo, hi) = (
+        ((lo - 2.0) / 10.0).floor() * 10.0,
+        ((hi + 2.0) / 10.0).ceil() * 10.0,
+    );
+    assert!(
+        scales.ends_with(&format!("{lo:.0} to {hi:.0} °C")),
+        "{scales}"
+    );
+    // The plotted levels are the ascent's, at the core's best heights.
+    let plot = &app.sounding().unwrap().plot;
+    assert_eq!(plot.levels.len(), profile.len());
+    for (i, l) in plot.levels.iter().enumerate() {
+        assert!((l.height_m as f64 - truth.heights.best_m[i].unwrap()).abs() < 0.01);
+    }
+    press(&mut app, &[Right]);
+    assert_eq!(app.screen(), Screen::SoundingResult(3), "four pages only");
     press(&mut app, &[Back]);
     assert_eq!(app.screen(), Screen::Home);
 }
@@ -972,14 +1010,6 @@ fn crossing_with_the_lid_below_the_crest_is_a_notice() {
 }
 
 // ---- Data ---------------------------------------------------------------------------------
-
-/// Press keys, carrying out each effect against the store as the board's loop does.
-fn press_stored(app: &mut App, st: &mut MemStorage, keys: &[Key]) {
-    for &k in keys {
-        let e = app.handle(k);
-        app.apply(e, st).unwrap();
-    }
-}
 
 #[test]
 fn data_list_view_rename_delete_save_load() {

@@ -222,6 +222,14 @@ pub fn press(app: &mut App, keys: &[Key]) {
     }
 }
 
+/// Press keys, carrying out each effect against the store as the board's loop does.
+pub fn press_stored(app: &mut App, st: &mut leeward_firmware::storage::MemStorage, keys: &[Key]) {
+    for &k in keys {
+        let e = app.handle(k);
+        app.apply(e, st).unwrap();
+    }
+}
+
 /// Type a number on the keypad (digits, '.', '-' as Sign).
 pub fn typing(s: &str) -> Vec<Key> {
     s.chars()
