@@ -9,6 +9,7 @@
 //! | module | what it holds |
 //! |---|---|
 //! | [`key`] | the keys, and the [`Effect`] a key press asks for |
+//! | [`link`] | the data link to a laptop: frames, requests and replies, the device side |
 //! | [`app`] | the state machine: screens, tasks, notices |
 //! | [`crossing`] | the Ridge crossing task's form, kept tracks and plots |
 //! | [`data`] | the Data task: dataset operations, summaries, dataset lists, name editor |
@@ -51,6 +52,7 @@ pub mod data;
 pub mod field;
 pub mod framebuffer;
 pub mod key;
+pub mod link;
 pub mod network;
 pub mod pages;
 pub mod plot;

@@ -44,13 +44,15 @@ impl DataKind {
             DataKind::Sounding => "sounding",
         }
     }
-    fn to_byte(self) -> u8 {
+    /// The kind's code in stored records and on the link.
+    pub fn to_byte(self) -> u8 {
         match self {
             DataKind::Stations => 1,
             DataKind::Sounding => 2,
         }
     }
-    fn from_byte(b: u8) -> Option<Self> {
+    /// The kind of a code; `None` for a code no kind has.
+    pub fn from_byte(b: u8) -> Option<Self> {
         match b {
             1 => Some(DataKind::Stations),
             2 => Some(DataKind::Sounding),
