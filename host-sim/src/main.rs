@@ -85,10 +85,10 @@ enum Command {
     /// The whole workflow on the built-in (invented) Tessel Range scenario.
     Demo,
     /// The device's screens on this computer: in a window, or in the terminal.
-    #[command(after_help = SIM_HELP)]
+    #[command(after_help = sim_help())]
     Sim(SimArgs),
     /// Run a key script on the simulated device, headless, and write PNG screenshots.
-    #[command(after_help = sim::shots::SHOTS_HELP)]
+    #[command(after_help = shots_help())]
     Shots {
         /// The key script (plain text; syntax below).
         #[arg(long, value_name = "SCRIPT")]
@@ -99,13 +99,21 @@ enum Command {
     },
 }
 
-const SIM_HELP: &str = "\
-Keys: 0-9 digits, '.' point, '-' sign, Backspace delete, arrows move, Enter OK, Escape BACK, \
-Tab or M MENU, Q quit. The window needs a leeward built with the window feature \
-(apt-get install libsdl2-dev, then cargo run --release --features window -- sim); \
---terminal works in any build and over a remote shell. Datasets are kept in memory for now: \
-each run starts from a blank store holding the demo station set, and what is saved is lost \
-on quitting (a flash image file will keep them once the device storage lands).";
+/// The after-help of `leeward sim`: the key map, how to get the window, the store.
+fn sim_help() -> String {
+    format!(
+        "Keys: 0-9 digits, '.' point, '-' sign, Backspace delete, arrows move, Enter OK, \
+         Escape BACK, Tab or M MENU, Q quit. The window needs a leeward built with the window \
+         feature (apt-get install libsdl2-dev, then cargo run --release --features window -- \
+         sim); --terminal works in any build and over a remote shell. {}",
+        sim::store::STORAGE_NOTE
+    )
+}
+
+/// The after-help of `leeward shots`: the script syntax and the store.
+fn shots_help() -> String {
+    format!("{}\n\n{}", sim::shots::SHOTS_HELP, sim::store::STORAGE_NOTE)
+}
 
 #[derive(Args, Debug)]
 struct SimArgs {
@@ -436,8 +444,11 @@ fn main() -> ExitCode {
         Command::Sounding(a) => sounding_cmd::sounding(&a, cli.json),
         Command::Temp { file, elevation } => sounding_cmd::temp(&file, elevation, cli.json),
         Command::Demo => commands::demo(cli.json),
+        Command::Sim(_) if cli.json => Err(CliError::input(
+            "sim: --json does not apply to the interactive simulator",
+        )),
         Command::Sim(a) => sim_command(&a),
-        Command::Shots { keys, out } => sim::shots::run(&keys, &out),
+        Command::Shots { keys, out } => sim::shots::run(&keys, &out, cli.json),
     };
     match result {
         Ok(out) => {

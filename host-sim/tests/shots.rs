@@ -66,6 +66,26 @@ fn a_script_writes_the_shots_it_names() {
             "{n}"
         );
     }
+    // --json lists the same shots as one object.
+    let v = common::json(&[
+        "shots",
+        "--keys",
+        script.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+    ]);
+    let shots = v["shots"].as_array().unwrap();
+    let got: Vec<(&str, u64)> = shots
+        .iter()
+        .map(|s| {
+            (
+                s["name"].as_str().unwrap(),
+                s["after_keys"].as_u64().unwrap(),
+            )
+        })
+        .collect();
+    assert_eq!(got, [("home", 0), ("site_1", 3), ("home-again", 4)]);
+    assert!(shots[1]["file"].as_str().unwrap().ends_with("site_1.png"));
     // Home before and after MENU is the same screen; the Site result is another.
     let read = |n: &str| std::fs::read(out.join(n)).unwrap();
     assert_eq!(read("home.png"), read("home-again.png"));
@@ -138,6 +158,7 @@ fn the_terminal_front_end_needs_a_terminal() {
     // Under the test harness standard input is not a terminal: a clear refusal, no mess.
     refused(&["sim", "--terminal"], "not a terminal");
     refused(&["sim", "--blocks", "quad"], "--terminal");
+    refused(&["sim", "--terminal", "--json"], "--json");
 }
 
 #[cfg(not(feature = "window"))]

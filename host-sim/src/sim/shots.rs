@@ -15,12 +15,12 @@ SCRIPT is plain text, read token by token (tokens are separated by spaces or lin
   @NAME                                          screenshot here, written as DIR/NAME.png
                                                  (NAME: a-z, 0-9, - and _, once per script)
   # ...                                          a comment, to the end of the line
-The device starts from power-on with a blank store (the demo station set), as `leeward sim` \
-does. An unknown key name or a bad token exits with status 2 and names the token and its line; \
-nothing is written then.";
+The device starts from power-on, as `leeward sim` does. An unknown key name or a bad token exits with status 2 and names the token and its line; \
+nothing is written then. With --json the list of screenshots is one JSON object.";
 
-/// Run `script_path`, writing its screenshots into `out_dir`; the report lists the files.
-pub fn run(script_path: &Path, out_dir: &Path) -> Result<String, CliError> {
+/// Run `script_path`, writing its screenshots into `out_dir`; the report lists the files
+/// (with `json`, as `{"shots": [{"name", "file", "after_keys"}]}`).
+pub fn run(script_path: &Path, out_dir: &Path, json: bool) -> Result<String, CliError> {
     let shown = script_path.display();
     let text = std::fs::read_to_string(script_path)
         .map_err(|e| CliError::input(format!("{shown}: cannot read the key script: {e}")))?;
@@ -33,6 +33,7 @@ pub fn run(script_path: &Path, out_dir: &Path) -> Result<String, CliError> {
     })?;
     let mut device = Device::power_on();
     let mut report = String::new();
+    let mut taken = Vec::new();
     let mut presses = 0usize;
     for step in steps {
         match step {
@@ -46,11 +47,34 @@ pub fn run(script_path: &Path, out_dir: &Path) -> Result<String, CliError> {
                     CliError::input(format!("{}: cannot write: {e}", path.display()))
                 })?;
                 report.push_str(&format!("{} (after {presses} keys)\n", path.display()));
+                taken.push(serde_json::json!({
+                    "name": name,
+                    "file": path.display().to_string(),
+                    "after_keys": presses,
+                }));
             }
         }
+    }
+    if json {
+        return Ok(format!("{}\n", serde_json::json!({ "shots": taken })));
     }
     if report.is_empty() {
         report.push_str("no screenshots: the script has no @NAME\n");
     }
     Ok(report)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn the_help_names_every_key() {
+        for (name, _) in super::super::keys::NAMES {
+            assert!(
+                SHOTS_HELP.contains(name),
+                "{name} missing from the shots help"
+            );
+        }
+    }
 }
