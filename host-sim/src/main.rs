@@ -3,6 +3,7 @@
 
 mod commands;
 mod input;
+mod sim;
 mod sounding_cmd;
 mod text;
 
@@ -83,6 +84,49 @@ enum Command {
     },
     /// The whole workflow on the built-in (invented) Tessel Range scenario.
     Demo,
+    /// The device's screens on this computer: in a window, or in the terminal.
+    #[command(after_help = sim_help())]
+    Sim(SimArgs),
+    /// Run a key script on the simulated device, headless, and write PNG screenshots.
+    #[command(after_help = shots_help())]
+    Shots {
+        /// The key script (plain text; syntax below).
+        #[arg(long, value_name = "SCRIPT")]
+        keys: PathBuf,
+        /// Folder for the screenshots (made if missing; files of the same name are replaced).
+        #[arg(long, value_name = "DIR")]
+        out: PathBuf,
+    },
+}
+
+/// The after-help of `leeward sim`: the key map, how to get the window, the store.
+fn sim_help() -> String {
+    format!(
+        "Keys: 0-9 digits, '.' point, '-' sign, Backspace delete, arrows move, Enter OK, \
+         Escape BACK, Tab or M MENU, Q quit. The window needs a leeward built with the window \
+         feature (apt-get install libsdl2-dev, then cargo run --release --features window -- \
+         sim); --terminal works in any build and over a remote shell. {}",
+        sim::store::STORAGE_NOTE
+    )
+}
+
+/// The after-help of `leeward shots`: the script syntax and the store.
+fn shots_help() -> String {
+    format!("{}\n\n{}", sim::shots::SHOTS_HELP, sim::store::STORAGE_NOTE)
+}
+
+#[derive(Args, Debug)]
+struct SimArgs {
+    /// Zoom of the window: each device pixel becomes N×N screen pixels (1 to 8).
+    #[arg(long, value_name = "N", default_value_t = 2)]
+    zoom: u32,
+    /// Draw the screen in this terminal with Unicode block characters instead of a window.
+    #[arg(long)]
+    terminal: bool,
+    /// Terminal cells: half (1×2 pixels, 400 columns), quad (2×2 pixels, 200 columns) or
+    /// auto (half when the terminal is wide enough).
+    #[arg(long, value_enum, default_value = "auto", requires = "terminal")]
+    blocks: sim::terminal::Blocks,
 }
 
 const SOUNDING_HELP: &str = "\
@@ -328,6 +372,25 @@ impl CliError {
     }
 }
 
+fn sim_command(a: &SimArgs) -> Result<String, CliError> {
+    if a.terminal {
+        return sim::terminal::run(a.blocks);
+    }
+    #[cfg(feature = "window")]
+    {
+        sim::window::run(a.zoom)
+    }
+    #[cfg(not(feature = "window"))]
+    {
+        let _ = a.zoom;
+        Err(CliError::input(
+            "sim: this leeward was built without the window; build it with \
+             `cargo run --release --features window -- sim` (needs apt-get install libsdl2-dev), \
+             or use `leeward sim --terminal`",
+        ))
+    }
+}
+
 fn main() -> ExitCode {
     let cli = match Cli::try_parse() {
         Ok(c) => c,
@@ -381,6 +444,11 @@ fn main() -> ExitCode {
         Command::Sounding(a) => sounding_cmd::sounding(&a, cli.json),
         Command::Temp { file, elevation } => sounding_cmd::temp(&file, elevation, cli.json),
         Command::Demo => commands::demo(cli.json),
+        Command::Sim(_) if cli.json => Err(CliError::input(
+            "sim: --json does not apply to the interactive simulator",
+        )),
+        Command::Sim(a) => sim_command(&a),
+        Command::Shots { keys, out } => sim::shots::run(&keys, &out, cli.json),
     };
     match result {
         Ok(out) => {
