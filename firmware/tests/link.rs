@@ -124,6 +124,13 @@ fn a_session_lists_puts_gets_and_deletes() {
         "{hello}"
     );
 
+    assert_eq!(
+        ask(&mut dev, &mut st, 4, &Request::Status),
+        format!(
+            "Status {{ count: 1, free: {}, clock_unix_s: None }}",
+            st.free_bytes()
+        )
+    );
     let entry = ask(&mut dev, &mut st, 4, &Request::Entry { index: 0 });
     assert_eq!(
         entry,
@@ -453,6 +460,7 @@ fn no_damaged_frame_is_accepted_in_100000_trials() {
         Request::Hello {
             version: PROTOCOL_VERSION,
         },
+        Request::Status,
         Request::Entry { index: 3 },
         Request::Get {
             name: "T_1200",

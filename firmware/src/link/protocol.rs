@@ -20,6 +20,8 @@ pub enum Request<'a> {
         /// The host's [`PROTOCOL_VERSION`].
         version: u16,
     },
+    /// How many datasets the device holds, and its free space.
+    Status,
     /// The dataset at `index` of the device's list (0 = first).
     Entry {
         /// Position in the list.
@@ -80,6 +82,15 @@ pub enum Reply<'a> {
         max_dataset: u32,
         /// Firmware version.
         firmware: &'a str,
+    },
+    /// The store's state.
+    Status {
+        /// Datasets stored.
+        count: u16,
+        /// Free space, bytes.
+        free: u32,
+        /// The device clock, seconds since 1970 UTC, if the host has set it.
+        clock_unix_s: Option<u64>,
     },
     /// One entry of the dataset list.
     Entry {

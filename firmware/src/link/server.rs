@@ -181,6 +181,11 @@ impl<'b> LinkServer<'b> {
         }
         match req {
             Request::Hello { .. } => Err(LinkError::NotUnderstood),
+            Request::Status => Ok(Answer::Plain(Reply::Status {
+                count: u16::try_from(store.list().len()).unwrap_or(u16::MAX),
+                free: len_u32(store.free_bytes()),
+                clock_unix_s: self.clock_unix_s,
+            })),
             Request::Entry { index } => {
                 let list = store.list();
                 let count = u16::try_from(list.len()).unwrap_or(u16::MAX);
