@@ -42,6 +42,7 @@ pub fn beta_at(lat_deg: f64) -> f64 {
     2.0 * OMEGA * libm::cos(lat_deg.to_radians()) / A
 }
 
+/// f and β at 45° (`rotation::coriolis`, `rotation::beta`).
 pub fn rotation(r: &mut Report) {
     let (m, (f, b)) = measure(|| {
         let lat = black_box(45.0);
@@ -93,6 +94,7 @@ fn spiral_network(n: usize) -> Option<Network> {
     Some(net)
 }
 
+/// The network fit of `n` stations on the analytic field, automatic model choice.
 pub fn network(r: &mut Report, n: usize, name: &'static str) {
     let Some(net) = spiral_network(n) else {
         r.check(name, false, format_args!("the network could not be built"));
@@ -141,6 +143,7 @@ pub fn stretch_expected() -> f64 {
     (z1 + f_at(l1)) * h2 / h1 - f_at(l2)
 }
 
+/// The stretching solve (`column::stretch`).
 pub fn stretching(r: &mut Report) {
     let (l1, z1, h1, l2, h2) = STRETCH;
     let (m, s) = measure(|| {
@@ -162,6 +165,7 @@ pub fn stretching(r: &mut Report) {
     );
 }
 
+/// A 3000 km ridge crossing over the demo ridge at the default step.
 pub fn crossing(r: &mut Report) {
     // 3000 km over the demo ridge at the default 5 km step, 20 m/s from the west.
     let mut input = CrossingInput::new(demo::ridge(), 20.0, 270.0, demo::LID_M);
@@ -209,11 +213,15 @@ pub fn crossing(r: &mut Report) {
     );
 }
 
-/// US Standard Atmosphere 1976 (FIELD-NOTES §6): sea level, lapse rate, tropopause.
+/// US Standard Atmosphere 1976 (FIELD-NOTES §6): sea-level pressure, Pa.
 pub const USSA_P0: f64 = 101_325.0;
+/// Sea-level temperature, K.
 pub const USSA_T0: f64 = 288.15;
+/// Tropospheric lapse rate, K/m.
 pub const USSA_LAPSE: f64 = 0.0065;
+/// Tropopause height, gpm.
 pub const USSA_Z_TROP: f64 = 11_000.0;
+/// Tropopause temperature, K.
 pub const USSA_T_TROP: f64 = 216.65;
 
 /// The standard's tropopause pressure, p0 (T/T0)^(g0/(Rd L)).
@@ -272,6 +280,7 @@ pub fn pressures_100() -> [f64; 100] {
     p
 }
 
+/// Hypsometric heights and the tropopause of the US Standard Atmosphere 1976.
 pub fn standard_atmosphere(r: &mut Report) {
     // The FIELD-NOTES §6 table (computed there from the standard's layer formulas), on the
     // profile of tests/tests/sounding_standard.rs: sea level, the tropopause and every
@@ -334,6 +343,7 @@ pub fn standard_atmosphere(r: &mut Report) {
     );
 }
 
+/// The sounding summary of a 100-level standard atmosphere.
 pub fn sounding_100(r: &mut Report) {
     let Some(prof) = standard_profile(&pressures_100()) else {
         r.check("100-level sounding", false, format_args!("refused"));
@@ -363,6 +373,7 @@ pub fn sounding_100(r: &mut Report) {
     );
 }
 
+/// The demo ascent's summary and its tropopause.
 pub fn demo_sounding(r: &mut Report) {
     // The demo ascent's stated profile (core/src/demo.rs, invented): its tropopause is put
     // at LID_M = 10 800 m, and the lid is taken from it.
@@ -395,6 +406,7 @@ pub fn demo_sounding(r: &mut Report) {
 /// The demo TEMP report (Parts A and B), coded from the demo ascent.
 pub const DEMO_TEMP: &str = include_str!("../../../demo/tessel-col.temp");
 
+/// The TEMP decode of the demo report, Parts A and B.
 pub fn temp_decode(r: &mut Report) {
     let opts = DecodeOptions {
         elevation_m: Some(demo::SITE_ELEVATION_M),
@@ -442,5 +454,74 @@ pub fn temp_decode(r: &mut Report) {
             l500.and_then(|l| l.height_m),
             if ok100 && ok747 { "as coded" } else { "DIFFER" }
         ),
+    );
+}
+
+/// Parts of the costly calculations, to show where their instructions go (no budget).
+pub fn breakdown(r: &mut Report) {
+    let part = |r: &mut Report, name: &'static str, m: &crate::meter::Measure| {
+        r.stack(name, m);
+        cortex_m_semihosting::hprintln!("part {:>9} {:>6} {}", m.instructions, m.stack_bytes, name);
+    };
+    for (n, name) in [
+        (
+            8,
+            "network fit, 8 stations, quadratic forced (no model choice)",
+        ),
+        (
+            32,
+            "network fit, 32 stations, quadratic forced (no model choice)",
+        ),
+    ] {
+        if let Some(net) = spiral_network(n) {
+            let opts = FitOptions {
+                reference: Reference::Point(LatLon {
+                    lat_deg: NET_LAT,
+                    lon_deg: NET_LON,
+                }),
+                model: leeward_core::network::ModelChoice::Force(Model::Quadratic),
+            };
+            let (m, _) = measure(|| analyse(black_box(&net), black_box(&opts)));
+            part(r, name, &m);
+        }
+    }
+    for n in [8usize, 32] {
+        let mut ls = leeward_core::linalg::LeastSquares::new(6);
+        for i in 0..n {
+            let (x, y) = spiral_xy(i, n);
+            let (x, y) = (x / 1e5, y / 1e5);
+            if let Some(ls) = ls.as_mut() {
+                let _ = ls.push(
+                    &[1.0, x, y, x * x, x * y, y * y],
+                    field(x * 1e5, y * 1e5),
+                    0.01,
+                );
+            }
+        }
+        if let Some(ls) = ls {
+            let (m, _) = measure(|| black_box(&ls).solve());
+            let name = if n == 8 {
+                "one least-squares solve, 8 x 6 (QR, covariance, Jacobi condition number)"
+            } else {
+                "one least-squares solve, 32 x 6 (QR, covariance, Jacobi condition number)"
+            };
+            part(r, name, &m);
+        }
+    }
+    let (m, prof) = measure(demo::sounding);
+    part(
+        r,
+        "demo ascent built (demo::sounding, 5 m hydrostatic steps)",
+        &m,
+    );
+    if let Ok(prof) = prof {
+        let (m, _) = measure(|| heights(black_box(&prof), None, 20.0));
+        part(r, "demo ascent: hypsometric heights only", &m);
+    }
+    let (m, _) = measure(leeward_firmware::sounding::demo_view);
+    part(
+        r,
+        "firmware sounding::demo_view (build + summary + view)",
+        &m,
     );
 }

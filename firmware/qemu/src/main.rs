@@ -13,6 +13,7 @@ mod calc;
 mod meter;
 mod report;
 mod screens;
+mod study;
 
 use cortex_m_rt::entry;
 use cortex_m_semihosting::{debug, hprintln};
@@ -45,7 +46,9 @@ fn main() -> ! {
     calc::sounding_100(&mut r);
     calc::demo_sounding(&mut r);
     calc::temp_decode(&mut r);
+    calc::breakdown(&mut r);
     screens::run(&mut r);
+    study::run(&mut r);
     hprintln!("stack {} {}", r.deepest.bytes, r.deepest.name);
     hprintln!("info {} checks, {} failures", r.checks, r.failures);
     debug::exit(if r.failures == 0 {
@@ -53,6 +56,16 @@ fn main() -> ! {
     } else {
         debug::EXIT_FAILURE
     });
+    loop {
+        cortex_m::asm::wfi();
+    }
+}
+
+/// A fault (a stack overflow into the statics, a bad access) is a failure too, not a hang.
+#[cortex_m_rt::exception]
+unsafe fn HardFault(frame: &cortex_m_rt::ExceptionFrame) -> ! {
+    hprintln!("check FAIL hard fault at pc {:#010x}", frame.pc());
+    debug::exit(debug::EXIT_FAILURE);
     loop {
         cortex_m::asm::wfi();
     }

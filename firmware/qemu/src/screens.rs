@@ -3,6 +3,10 @@
 
 use core::hint::black_box;
 
+use cortex_m_semihosting::hprintln;
+use embedded_graphics::pixelcolor::BinaryColor;
+use embedded_graphics::prelude::{DrawTarget, OriginDimensions, Pixel, Size};
+
 use leeward_firmware::app::Screen;
 use leeward_firmware::framebuffer::FrameBuffer;
 use leeward_firmware::storage::MemStorage;
@@ -60,6 +64,50 @@ fn press(app: &mut App, st: &mut MemStorage, keys: &[Key]) {
     }
 }
 
+/// A display that only counts pixels: rendering into it costs what embedded-graphics and
+/// the firmware spend making the pixels, without the frame buffer's stores.
+struct Sink(u32);
+
+impl OriginDimensions for Sink {
+    fn size(&self) -> Size {
+        Size::new(400, 240)
+    }
+}
+
+impl DrawTarget for Sink {
+    type Color = BinaryColor;
+    type Error = core::convert::Infallible;
+    fn draw_iter<I: IntoIterator<Item = Pixel<BinaryColor>>>(
+        &mut self,
+        pixels: I,
+    ) -> Result<(), Self::Error> {
+        for p in pixels {
+            black_box(p);
+            self.0 += 1;
+        }
+        Ok(())
+    }
+}
+
+/// Parts of a render: the clear alone, and the drawing without the frame buffer.
+fn render_parts(app: &App, fb: &mut FrameBuffer) {
+    let (m, _) = measure(|| fb.clear(BinaryColor::Off));
+    hprintln!(
+        "part {:>9} {:>6} {}",
+        m.instructions,
+        m.stack_bytes,
+        "frame buffer clear (fill_solid)"
+    );
+    let mut sink = Sink(0);
+    let (m, _) = measure(|| app.render(&mut sink));
+    hprintln!(
+        "part {:>9} {:>6} home menu drawn into a pixel-counting sink ({} pixels drawn one by one)",
+        m.instructions,
+        m.stack_bytes,
+        sink.0
+    );
+}
+
 pub fn run(r: &mut Report) {
     let mut storage = MemStorage::new();
     // Held in statics as on the board (firmware/board/src/main.rs), not on the stack.
@@ -72,6 +120,8 @@ pub fn run(r: &mut Report) {
         return;
     };
     render(r, app, fb, "full render: home menu");
+    render_parts(app, fb);
+    fb.mark_clean();
     key(
         r,
         app,
