@@ -10,7 +10,7 @@ use embedded_graphics::prelude::{DrawTarget, OriginDimensions, Pixel, Size};
 use leeward_firmware::app::Screen;
 use leeward_firmware::framebuffer::FrameBuffer;
 use leeward_firmware::storage::MemStorage;
-use leeward_firmware::{App, Key};
+use leeward_firmware::{App, Effect, Key};
 
 use crate::calc::CALC_BUDGET;
 use crate::meter::measure;
@@ -24,15 +24,29 @@ pub const KEY_BUDGET: u64 = 1_000_000;
 fn render(r: &mut Report, app: &App, fb: &mut FrameBuffer, name: &'static str) {
     let (m, res) = measure(|| app.render(black_box(&mut *fb)));
     r.count(name, &m, RENDER_BUDGET);
+    // Something must be drawn: a blank screen fails.
+    let on = pixels_on(fb);
     r.check(
         name,
-        res.is_ok(),
-        format_args!("{} lines changed", fb.dirty_count()),
+        res.is_ok() && on > 0,
+        format_args!("{} pixels on, {} lines changed", on, fb.dirty_count()),
     );
     fb.mark_clean();
 }
 
-/// One key press and the redraw the board makes for it (`handle`, `apply`, `render`).
+/// Pixels set in the frame.
+fn pixels_on(fb: &FrameBuffer) -> u32 {
+    let mut n = 0;
+    for y in 0..leeward_firmware::framebuffer::HEIGHT {
+        if let Some(line) = fb.line(y) {
+            n += line.iter().map(|b| b.count_ones()).sum::<u32>();
+        }
+    }
+    n
+}
+
+/// One key press and what the board does for it (firmware/board/src/main.rs): `handle`,
+/// `apply`, and a render when the effect asks for one. The key must change the screen.
 fn key(
     r: &mut Report,
     app: &mut App,
@@ -42,26 +56,33 @@ fn key(
     name: &'static str,
     budget: u64,
 ) {
-    let (m, res) = measure(|| {
+    let (m, (effect, stored, drawn)) = measure(|| {
         let e = app.handle(black_box(k));
         let stored = app.apply(e, st).is_ok();
-        (app.render(&mut *fb).is_ok(), stored)
+        let drawn = e == Effect::Nothing || app.render(&mut *fb).is_ok();
+        (e, stored, drawn)
     });
     r.count(name, &m, budget);
+    let changed = fb.dirty_count();
     r.check(
         name,
-        res == (true, true),
-        format_args!("{} lines changed", fb.dirty_count()),
+        effect != Effect::Nothing && stored && drawn && changed > 0,
+        format_args!("{:?}, {} lines changed", effect, changed),
     );
     fb.mark_clean();
 }
 
-/// Key presses without measuring (to reach a screen).
-fn press(app: &mut App, st: &mut MemStorage, keys: &[Key]) {
+/// Key presses without measuring (to reach a screen), each redrawn as the board does, so
+/// the frame holds the screen shown before the next measured key.
+fn press(app: &mut App, st: &mut MemStorage, fb: &mut FrameBuffer, keys: &[Key]) {
     for &k in keys {
         let e = app.handle(k);
         let _ = app.apply(e, st);
+        if e != Effect::Nothing {
+            let _ = app.render(&mut *fb);
+        }
     }
+    fb.mark_clean();
 }
 
 /// A display that only counts pixels: rendering into it costs what embedded-graphics and
@@ -121,6 +142,8 @@ pub fn run(r: &mut Report) {
     };
     render(r, app, fb, "full render: home menu");
     render_parts(app, fb);
+    // Put the home menu back in the frame (render_parts cleared it), as the board has it.
+    let _ = app.render(fb);
     fb.mark_clean();
     key(
         r,
@@ -132,7 +155,12 @@ pub fn run(r: &mut Report) {
         KEY_BUDGET,
     );
     // Site: back to the first row, open the form (demo latitude), compute.
-    press(app, &mut storage, &[Key::Up, Key::Ok, Key::Down, Key::Ok]);
+    press(
+        app,
+        &mut storage,
+        fb,
+        &[Key::Up, Key::Ok, Key::Down, Key::Ok],
+    );
     r.check(
         "firmware: Site result",
         app.screen() == Screen::SiteResult && app.site_result().is_some(),
@@ -144,6 +172,7 @@ pub fn run(r: &mut Report) {
     press(
         app,
         &mut storage,
+        fb,
         &[Key::Menu, Key::Down, Key::Down, Key::Down],
     );
     key(
@@ -166,15 +195,25 @@ pub fn run(r: &mut Report) {
         app,
         &mut storage,
         fb,
-        Key::Down,
+        Key::Right,
         "key press + redraw: next Sounding page",
         KEY_BUDGET,
     );
-    // A digit typed into the Site form's latitude.
+    // A digit typed at the end of the Site form's latitude (UP to the field, OK starts the edit), with
+    // the frame as the board has it before the key.
     press(
         app,
         &mut storage,
-        &[Key::Menu, Key::Up, Key::Up, Key::Up, Key::Ok],
+        fb,
+        &[
+            Key::Menu,
+            Key::Up,
+            Key::Up,
+            Key::Up,
+            Key::Ok,
+            Key::Up,
+            Key::Ok,
+        ],
     );
     r.check(
         "firmware: Site form",
