@@ -43,6 +43,11 @@ pub const MIN_STATION_SEPARATION_M: f64 = 500.0;
 /// Condition number above which a forced fit is refused (leeward's choice, documented).
 pub const MAX_CONDITION: f64 = 1e4;
 
+/// Smallest 1 − leverage for which a station gets a leave-one-out residual: below it the
+/// residual would be amplified more than [`MAX_CONDITION`] times (our choice, matching the
+/// condition limit).
+pub const MIN_LOO_FREEDOM: f64 = 1.0 / MAX_CONDITION;
+
 /// Condition number above which an automatic choice falls back to a simpler model.
 pub const AUTO_CONDITION: f64 = 300.0;
 
@@ -512,20 +517,25 @@ pub fn analyse(net: &Network, opts: &FitOptions) -> Result<NetworkFit> {
         let r = s.height_m - sol.combine(&row[..p]);
         sum_r2 += r * r;
         chi2 += (r / s.sigma()) * (r / s.sigma());
-        let (loo_residual_m, loo_score) =
-            match (n > p).then(|| fit(net, xy, model, Some(i))).flatten() {
-                Some(other) if other.condition <= MAX_CONDITION => {
-                    let pred = other.combine(&row[..p]);
-                    let var = other.variance(&row[..p]);
-                    let rr = s.height_m - pred;
-                    let score = rr / sqrt(s.sigma() * s.sigma() + var);
-                    if score.abs() > SUSPECT_SCORE && worst.is_none_or(|(_, w)| score.abs() > w) {
-                        worst = Some((i as u8, score.abs()));
-                    }
-                    (Some(rr), Some(score))
-                }
-                _ => (None, None),
-            };
+        // Leave-one-out from the one fit (Cook and Weisberg 1982, "Residuals and Influence
+        // in Regression", §2.2): with the station's leverage h = w aᵀ C a, the refit
+        // without it predicts it with the residual r/(1 − h) and the variance
+        // aᵀ C a/(1 − h) (Sherman–Morrison). Exact for the same model, and one solve
+        // instead of n + 1 on the device. A leverage near 1 means the others cannot pin
+        // the fit without this station: no leave-one-out, as for an ill-conditioned refit.
+        let var_full = sol.variance(&row[..p]);
+        let free = 1.0 - var_full / (s.sigma() * s.sigma());
+        let (loo_residual_m, loo_score) = if n > p && free > MIN_LOO_FREEDOM {
+            let rr = r / free;
+            let var = var_full / free;
+            let score = rr / sqrt(s.sigma() * s.sigma() + var);
+            if score.abs() > SUSPECT_SCORE && worst.is_none_or(|(_, w)| score.abs() > w) {
+                worst = Some((i as u8, score.abs()));
+            }
+            (Some(rr), Some(score))
+        } else {
+            (None, None)
+        };
         // Capacity equals MAX_STATIONS, the network's own: this cannot fail, but a
         // failure would be an error value, not a panic.
         stations

@@ -747,6 +747,22 @@ proptest! {
 }
 
 #[test]
+fn a_garbled_group_starting_like_a_section_does_not_end_the_standard_surfaces() {
+    // Found by the property below: the 500 hPa indicator replaced by "880#0" (88 as a
+    // tropopause section would start, then unreadable) ended section 2 there and lost
+    // every surface above. Only a readable indicator starts section 3.
+    let mut g = part_a_groups();
+    let at = index_of(500);
+    g[at] = "880#0".to_string();
+    let r = decode_ok(&join(&g), None);
+    for o in standard_obs().iter().filter(|o| o.p <= 300) {
+        let l = level_at(&r.profile, f64::from(o.p));
+        assert!(l.is_some(), "{} hPa lost", o.p);
+        assert_matches(&l.unwrap(), o, &format!("{} hPa", o.p));
+    }
+}
+
+#[test]
 fn garbled_day_group_borrows_the_unit_and_guesses_id() {
     // Part A's date group garbled: the wind unit comes from Part B's, and where the
     // wind groups stop (Id) from how the indicators line up.

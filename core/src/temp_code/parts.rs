@@ -80,7 +80,10 @@ impl Layout for LayoutA {
     }
 
     fn ends(&self, g: &[u8]) -> bool {
-        starts_section_a(g)
+        // Only a readable indicator ends the standard surfaces: a garbled group that
+        // happens to start with 88, 77 or 66 is a damaged level, and the walk
+        // resynchronises on the indicators after it.
+        starts_section_a(g) && figures(g).is_ok()
     }
 }
 
