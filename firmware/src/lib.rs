@@ -21,6 +21,8 @@
 //! | [`settings`] | display units and latitude entry, unit conversions |
 //! | [`sounding`] | the Sounding task's summary of the current sounding |
 //! | [`storage`] | the storage trait and an in-memory implementation |
+//! | [`records`] | the stored records: postcard with a schema version, checked on reading |
+//! | [`flash`] | the flash store (sequential-storage map and queue) and a fault-injecting flash |
 //! | [`text`] | fixed-capacity strings and word wrapping |
 //!
 //! ```
@@ -48,10 +50,12 @@ pub mod app;
 pub mod crossing;
 pub mod data;
 pub mod field;
+pub mod flash;
 pub mod framebuffer;
 pub mod key;
 pub mod network;
 pub mod pages;
+pub mod records;
 pub mod settings;
 pub mod sounding;
 pub mod storage;
