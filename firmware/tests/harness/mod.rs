@@ -210,12 +210,12 @@ pub fn read_back<F: embedded_storage::nor_flash::NorFlash>(
     for d in st.list() {
         let (kind, len) = st
             .get(&d.name, &mut buf)
-            .map_err(|e| format!("get {}: {e}", d.name))?;
+            .map_err(|e| format!("DETECTED: get {}: {e}", d.name))?;
         out.datasets
             .insert(d.name.to_string(), (kind, buf[..len].to_vec()));
     }
     st.log_for_each(|e| out.log.push(e.uptime_s))
-        .map_err(|e| format!("log: {e}"))?;
+        .map_err(|e| format!("DETECTED: log: {e}"))?;
     Ok(out)
 }
 
@@ -256,7 +256,9 @@ pub fn check_after_cut(got: &Model, before: &Model, op: &Op) -> Result<(), Strin
         Ok(())
     } else {
         Err(format!(
-            "after a cut during {op:?}:\n got {got:?}\n before {before:?}"
+            "after a cut during {}: {}",
+            op_name(op),
+            diff(got, before)
         ))
     }
 }
@@ -294,7 +296,9 @@ pub fn cut_and_check<const W: usize, const P: usize>(
         // The cut came after the operation (or it needed no flash write).
         if got != m {
             return Err(format!(
-                "acknowledged {op:?} lost (cut {was_cut}):\n got {got:?}\n want {m:?}"
+                "acknowledged {} lost: {}",
+                op_name(op),
+                diff(&got, &m)
             ));
         }
     } else {
@@ -314,4 +318,43 @@ pub fn count_ops<const W: usize, const P: usize>(
     let mut m = before.clone();
     let _ = apply(&mut st, &mut m, op);
     st.flash().ops()
+}
+
+/// An operation in a few words.
+pub fn op_name(op: &Op) -> String {
+    match op {
+        Op::Put(k, n, d) => format!("put {k:?} {n} ({} bytes)", d.len()),
+        Op::Replace(k, n, d) => format!("replace {k:?} {n} ({} bytes)", d.len()),
+        other => format!("{other:?}"),
+    }
+}
+
+/// How `got` differs from `want`, briefly.
+pub fn diff(got: &Model, want: &Model) -> String {
+    let mut out = Vec::new();
+    let names: std::collections::BTreeSet<&String> =
+        got.datasets.keys().chain(want.datasets.keys()).collect();
+    for n in names {
+        let g = got
+            .datasets
+            .get(n)
+            .map(|(k, d)| (k, d.len(), leeward_firmware::flash::crc32(d)));
+        let w = want
+            .datasets
+            .get(n)
+            .map(|(k, d)| (k, d.len(), leeward_firmware::flash::crc32(d)));
+        if g != w {
+            out.push(format!("{n}: got {g:?}, before {w:?}"));
+        }
+    }
+    if got.settings != want.settings {
+        out.push(format!(
+            "settings: got {:?}, before {:?}",
+            got.settings, want.settings
+        ));
+    }
+    if got.log != want.log {
+        out.push(format!("log: got {:?}, before {:?}", got.log, want.log));
+    }
+    out.join("; ")
 }
