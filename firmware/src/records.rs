@@ -286,7 +286,8 @@ impl Record for LogEntry {
     }
     fn decode(bytes: &[u8]) -> Result<Self, RecordError> {
         let e: LogEntry = decode_v1(Self::TAG, bytes)?;
-        if e.inputs.iter().any(|n| !valid_name(n)) {
+        // Results are finite numbers: anything else is damage.
+        if e.inputs.iter().any(|n| !valid_name(n)) || e.values.iter().any(|v| !v.is_finite()) {
             return Err(RecordError::Invalid);
         }
         Ok(e)

@@ -230,6 +230,13 @@ fn log_entry_bytes() {
 }
 
 #[test]
+fn log_entry_with_a_value_not_a_number_is_refused() {
+    // Found by the records fuzz target: a log entry holding NaN decoded as a result.
+    let bad = cat(&[&[6, 1, 2, 0, 1, 0, 0], &[1], &f(f64::NAN)]);
+    assert_eq!(LogEntry::decode(&bad), Err(RecordError::Invalid));
+}
+
+#[test]
 fn newer_and_foreign_records_are_errors() {
     assert_eq!(
         Settings::decode(&[5, 2, 0, 0, 0, 0]),
