@@ -380,3 +380,43 @@ fn app_runs_on_the_flash_store() {
     let _app = App::power_on(&mut st);
     assert_eq!(st.list().len(), 1, "the demo set is stored once only");
 }
+
+/// The log warns before it is full, refuses entries when full without dropping any, and
+/// drops the oldest only when told.
+#[test]
+fn log_warns_before_full_and_drops_only_when_told() {
+    let mut st = boot(erased::<4, 1024>(11));
+    let mut warned_at = None;
+    let mut pushed = 0u32;
+    loop {
+        if warned_at.is_none() && st.log_warning().is_some() {
+            warned_at = Some(pushed);
+        }
+        match st.log_push(&log_entry(pushed + 1)) {
+            Ok(_) => pushed += 1,
+            Err(leeward_firmware::storage::StoreError::LogFull) => break,
+            Err(e) => panic!("push {pushed}: {e}"),
+        }
+    }
+    let warned_at = warned_at.expect("no warning before the log was full");
+    assert!(
+        warned_at < pushed && pushed - warned_at >= 3,
+        "warned at {warned_at} of {pushed}"
+    );
+    let all: Vec<u32> = (1..=pushed).collect();
+    let mut st = boot(st.into_flash());
+    assert_eq!(
+        read_back(&mut st).unwrap().log,
+        all,
+        "a full log kept every entry"
+    );
+    assert_eq!(st.log_drop_oldest(5).unwrap(), 5);
+    let mut st = boot(st.into_flash());
+    assert_eq!(read_back(&mut st).unwrap().log, all[5..].to_vec());
+    // Space comes back a whole page at a time (sequential-storage's queue erases a page
+    // once all its entries are gone): after half the entries, there is room.
+    assert_eq!(st.log_drop_oldest(pushed / 2).unwrap(), pushed / 2);
+    // Running numbers go on after a reboot.
+    let mut st = boot(st.into_flash());
+    assert_eq!(st.log_push(&log_entry(999)).unwrap(), pushed);
+}

@@ -714,7 +714,8 @@ impl<F: NorFlash> FlashStore<F> {
 
 impl<F: MultiwriteNorFlash> FlashStore<F> {
     /// Drop the `n` oldest log entries (the user asked for it, having exported them);
-    /// how many were dropped.
+    /// how many were dropped. Their space comes back a whole erase page at a time, once
+    /// every entry on the page is gone.
     pub fn log_drop_oldest(&mut self, n: u32) -> Result<u32, StoreError> {
         let mut q = queue(&mut self.flash, &self.log_range)?;
         let mut dropped = 0;
