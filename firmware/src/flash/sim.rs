@@ -171,7 +171,7 @@ impl<B: AsRef<[u8]> + AsMut<[u8]>, const WORD: usize, const PAGE: usize> SimFlas
 
     fn check(&mut self, offset: u32, len: usize, align: usize) -> Result<usize, SimError> {
         let start = offset as usize;
-        if start % align != 0 || len % align != 0 {
+        if !start.is_multiple_of(align) || !len.is_multiple_of(align) {
             self.violations += 1;
             return Err(SimError::NotAligned);
         }
