@@ -141,7 +141,9 @@ impl Profile {
         }
     }
 
-    fn validate(&self) -> Result<()> {
+    /// Check every height and distance for physical possibility (the crossing solver
+    /// does this too; stored ridge profiles are checked again when read back).
+    pub fn validate(&self) -> Result<()> {
         match self {
             Profile::Bell {
                 base_m,

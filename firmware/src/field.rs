@@ -142,7 +142,7 @@ impl Field {
             let a = libm_abs(shown);
             // Degrees-minutes only for what an angle can be; anything larger (or not
             // finite) is shown plainly rather than wrapped or saturated.
-            if a.is_nan() || a >= 1.0e6 {
+            if !a.is_finite() || a >= 1.0e6 {
                 return Field::with_text(&short_number(shown, 4));
             }
             let mut deg = a as u32;

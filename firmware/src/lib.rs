@@ -23,6 +23,8 @@
 //! | [`settings`] | display units and latitude entry, unit conversions |
 //! | [`sounding`] | the Sounding task: summary and profile plot of the current sounding |
 //! | [`storage`] | the storage trait and an in-memory implementation |
+//! | [`records`] | the stored records: postcard with a schema version, checked on reading |
+//! | [`flash`] | the flash store (sequential-storage map and queue) and a fault-injecting flash |
 //! | [`text`] | fixed-capacity strings and word wrapping |
 //!
 //! ```
@@ -50,12 +52,14 @@ pub mod app;
 pub mod crossing;
 pub mod data;
 pub mod field;
+pub mod flash;
 pub mod framebuffer;
 pub mod key;
 pub mod link;
 pub mod network;
 pub mod pages;
 pub mod plot;
+pub mod records;
 pub mod settings;
 pub mod sounding;
 pub mod storage;

@@ -12,7 +12,7 @@ pub const MS_PER_KMH: f64 = 1.0 / 3.6;
 pub const HPA_PER_INHG: f64 = 33.86389;
 
 /// Unit of heights and depths.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, serde::Serialize, serde::Deserialize)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub enum HeightUnit {
     /// Metres.
@@ -23,7 +23,7 @@ pub enum HeightUnit {
 }
 
 /// Unit of wind speed.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, serde::Serialize, serde::Deserialize)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub enum WindUnit {
     /// Metres per second.
@@ -36,7 +36,7 @@ pub enum WindUnit {
 }
 
 /// Unit of pressure.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, serde::Serialize, serde::Deserialize)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub enum PressureUnit {
     /// Hectopascals.
@@ -47,7 +47,7 @@ pub enum PressureUnit {
 }
 
 /// How latitudes are typed.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, serde::Serialize, serde::Deserialize)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub enum LatEntry {
     /// Decimal degrees, `45.5`.
@@ -58,7 +58,7 @@ pub enum LatEntry {
 }
 
 /// Everything under Settings; kept in the app and in storage.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, serde::Serialize, serde::Deserialize)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct Settings {
     /// Heights and depths.

@@ -1,8 +1,8 @@
 //! Where the device keeps what must survive a power cut: the settings and named datasets
 //! (station sets, soundings). The app never touches storage while handling a key: it
 //! returns an [`crate::Effect`] and the caller's loop carries it out through this trait
-//! ([`crate::App::apply`]). This crate provides [`MemStorage`]; the flash implementation
-//! comes later.
+//! ([`crate::App::apply`]). This crate provides [`MemStorage`] (RAM) and
+//! [`crate::flash::FlashStore`] (NOR flash, power-cut safe).
 //!
 //! Datasets are bytes to the store. A station set is written in a fixed layout of our own
 //! ([`encode_stations`], [`decode_stations`]) until the postcard encoding arrives with
@@ -34,6 +34,10 @@ pub enum DataKind {
     Stations,
     /// An upper-air sounding.
     Sounding,
+    /// A named site.
+    Site,
+    /// A ridge profile.
+    Ridge,
 }
 
 impl DataKind {
@@ -42,6 +46,8 @@ impl DataKind {
         match self {
             DataKind::Stations => "stations",
             DataKind::Sounding => "sounding",
+            DataKind::Site => "site",
+            DataKind::Ridge => "ridge",
         }
     }
     /// The kind's code in stored records and on the link.
@@ -49,6 +55,8 @@ impl DataKind {
         match self {
             DataKind::Stations => 1,
             DataKind::Sounding => 2,
+            DataKind::Site => 3,
+            DataKind::Ridge => 4,
         }
     }
     /// The kind of a code; `None` for a code no kind has.
@@ -56,6 +64,8 @@ impl DataKind {
         match b {
             1 => Some(DataKind::Stations),
             2 => Some(DataKind::Sounding),
+            3 => Some(DataKind::Site),
+            4 => Some(DataKind::Ridge),
             _ => None,
         }
     }
@@ -107,6 +117,13 @@ pub enum StoreError {
     },
     /// The stored bytes are not a valid dataset of the kind expected.
     Damaged,
+    /// The flash did not complete a write or read (the operation may not have
+    /// happened).
+    Flash,
+    /// The storage area could not be read even after repair; it needs erasing.
+    Corrupted,
+    /// The results log is full: export it, then clear old entries.
+    LogFull,
 }
 
 impl core::fmt::Display for StoreError {
@@ -123,6 +140,19 @@ impl core::fmt::Display for StoreError {
                 write!(f, "dataset of {bytes} bytes; at most {max} fit")
             }
             StoreError::Damaged => write!(f, "the stored dataset is damaged"),
+            StoreError::Flash => {
+                write!(
+                    f,
+                    "flash did not answer; the change may not be saved: try again"
+                )
+            }
+            StoreError::Corrupted => write!(
+                f,
+                "storage area unreadable: export what you can, then erase it under Data"
+            ),
+            StoreError::LogFull => {
+                write!(f, "results log full: export it, then clear old entries")
+            }
         }
     }
 }

@@ -209,6 +209,8 @@ pub enum LinkError {
     StoreFailed,
     /// The device keeps no results log.
     NoLog,
+    /// The results log is full.
+    LogFull,
 }
 
 impl core::fmt::Display for LinkError {
@@ -241,6 +243,9 @@ impl core::fmt::Display for LinkError {
             LinkError::StoreDamaged => write!(f, "the stored dataset is damaged"),
             LinkError::StoreFailed => write!(f, "the device's storage failed to write"),
             LinkError::NoLog => write!(f, "the device keeps no results log"),
+            LinkError::LogFull => {
+                write!(f, "the device's results log is full: export it, then clear old entries")
+            }
         }
     }
 }
@@ -263,7 +268,9 @@ impl From<crate::storage::StoreError> for LinkError {
             S::NotFound => LinkError::NotFound,
             S::BadName => LinkError::BadName,
             S::TooBig { max, .. } => LinkError::TooBig { max: n(max) },
-            S::Damaged => LinkError::StoreDamaged,
+            S::Damaged | S::Corrupted => LinkError::StoreDamaged,
+            S::Flash => LinkError::StoreFailed,
+            S::LogFull => LinkError::LogFull,
         }
     }
 }
