@@ -9,7 +9,7 @@
 //! the flash storage.
 
 use crate::settings::{Settings, SETTINGS_BYTES};
-use leeward_core::network::{Network, Station, MAX_STATIONS};
+use leeward_core::network::{Network, MAX_STATIONS};
 
 /// Characters of a dataset name.
 pub const NAME_LEN: usize = 8;
@@ -21,10 +21,12 @@ pub const MAX_DATASETS: usize = 16;
 pub const MEM_CAPACITY: usize = 4096;
 /// Bytes each stored dataset costs besides its contents (kind, name, length).
 pub const RECORD_HEADER: usize = 1 + NAME_LEN + 2;
-/// Bytes of one station in a station set.
-pub const STATION_BYTES: usize = NAME_LEN + 4 * 8;
-/// Largest station set, bytes (a count, then the stations).
-pub const MAX_STATION_SET_BYTES: usize = 1 + MAX_STATIONS * STATION_BYTES;
+/// Most bytes of one station in a station-set record (postcard: identifier length and up
+/// to 8 characters, latitude and longitude, height, and the optional height error).
+pub const STATION_BYTES: usize = 1 + NAME_LEN + 2 * 8 + 8 + 1 + 8;
+/// Largest station-set record, bytes (tag and version, a count, then the stations).
+pub const MAX_STATION_SET_BYTES: usize =
+    crate::records::RECORD_PREFIX + 1 + MAX_STATIONS * STATION_BYTES;
 
 /// What a dataset holds.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -189,6 +191,18 @@ pub trait Storage {
     fn delete(&mut self, name: &str) -> Result<(), StoreError>;
     /// Bytes free for datasets (each costs [`RECORD_HEADER`] besides its contents).
     fn free_bytes(&mut self) -> usize;
+
+    /// Entries in the results log, oldest first (a store without a log has none).
+    fn log_len(&mut self) -> u32 {
+        0
+    }
+
+    /// Results-log entry `index` (0 = the oldest kept) as its stored record, copied into
+    /// `buf`; its length.
+    fn log_entry(&mut self, index: u32, buf: &mut [u8]) -> Result<usize, StoreError> {
+        let _ = (index, buf);
+        Err(StoreError::NotFound)
+    }
 }
 
 /// Storage in RAM, for the host and for tests; it holds the same bytes flash would.
@@ -424,64 +438,20 @@ impl Storage for MemStorage {
     }
 }
 
-/// Write `net` as a station set: a count byte, then per station the identifier (8 bytes,
-/// zero-padded) and latitude, longitude, height and height error as little-endian f64
-/// (a missing height error as NaN). The length written.
+/// Encode a station set as its stored record ([`crate::records`]: tag, schema version,
+/// postcard) into `buf`; its length.
 pub fn encode_stations(net: &Network, buf: &mut [u8]) -> Result<usize, StoreError> {
-    let n = net.len();
-    let bytes = 1 + n * STATION_BYTES;
-    let max = buf.len();
-    let out = buf
-        .get_mut(..bytes)
-        .ok_or(StoreError::TooBig { bytes, max })?;
-    out[0] = n as u8;
-    for (st, chunk) in net
-        .stations
-        .iter()
-        .zip(out[1..].chunks_exact_mut(STATION_BYTES))
-    {
-        let (id, nums) = chunk.split_at_mut(NAME_LEN);
-        id.fill(0);
-        for (d, s) in id.iter_mut().zip(st.id.bytes()) {
-            *d = s;
-        }
-        let v = [
-            st.pos.lat_deg,
-            st.pos.lon_deg,
-            st.height_m,
-            st.sigma_m.unwrap_or(f64::NAN),
-        ];
-        for (x, c) in v.iter().zip(nums.chunks_exact_mut(8)) {
-            c.copy_from_slice(&x.to_le_bytes());
-        }
-    }
-    Ok(bytes)
+    use crate::records::Record;
+    net.encode(buf).map_err(|_| StoreError::TooBig {
+        bytes: MAX_STATION_SET_BYTES,
+        max: buf.len(),
+    })
 }
 
-/// Read a station set written by [`encode_stations`]; every station is checked again by
-/// the core, so a damaged set is an error, never a strange network.
+/// Decode a stored station-set record, every station checked as if typed in.
 pub fn decode_stations(bytes: &[u8]) -> Result<Network, StoreError> {
-    let (&n, rest) = bytes.split_first().ok_or(StoreError::Damaged)?;
-    let n = n as usize;
-    if n > MAX_STATIONS || rest.len() != n * STATION_BYTES {
-        return Err(StoreError::Damaged);
-    }
-    let mut net = Network::new();
-    for chunk in rest.chunks_exact(STATION_BYTES) {
-        let (id, nums) = chunk.split_at(NAME_LEN);
-        let id = core::str::from_utf8(&id[..id.iter().position(|&b| b == 0).unwrap_or(NAME_LEN)])
-            .map_err(|_| StoreError::Damaged)?;
-        let mut v = [0.0; 4];
-        for (x, c) in v.iter_mut().zip(nums.chunks_exact(8)) {
-            let mut a = [0u8; 8];
-            a.copy_from_slice(c);
-            *x = f64::from_le_bytes(a);
-        }
-        let sigma = if v[3].is_nan() { None } else { Some(v[3]) };
-        let st = Station::new(id, v[0], v[1], v[2], sigma).map_err(|_| StoreError::Damaged)?;
-        net.push(st).map_err(|_| StoreError::Damaged)?;
-    }
-    Ok(net)
+    use crate::records::Record;
+    Network::decode(bytes).map_err(|_| StoreError::Damaged)
 }
 
 #[cfg(test)]

@@ -2,7 +2,12 @@
 //! (units shown) or one JSON object in SI units (`--json`).
 
 mod commands;
+mod datasets;
+mod flash_file;
 mod input;
+mod link_client;
+mod link_cmd;
+mod serial;
 mod sim;
 mod sounding_cmd;
 mod text;
@@ -84,6 +89,11 @@ enum Command {
     },
     /// The whole workflow on the built-in (invented) Tessel Range scenario.
     Demo,
+    /// Run the simulated handheld headless, its data link on a Unix socket.
+    Device(link_cmd::DeviceArgs),
+    /// Talk to the handheld (serial port) or a simulated one (socket): list, push, pull,
+    /// delete, log, clock.
+    Link(link_cmd::LinkArgs),
     /// The device's screens on this computer: in a window, or in the terminal.
     #[command(after_help = sim_help())]
     Sim(SimArgs),
@@ -127,6 +137,10 @@ struct SimArgs {
     /// auto (half when the terminal is wide enough).
     #[arg(long, value_enum, default_value = "auto", requires = "terminal")]
     blocks: sim::terminal::Blocks,
+    /// Flash image file of the simulated device (default: $LEEWARD_FLASH, else
+    /// ~/.local/share/leeward/flash.img); created erased when absent.
+    #[arg(long, value_name = "FILE")]
+    flash: Option<PathBuf>,
 }
 
 const SOUNDING_HELP: &str = "\
@@ -373,16 +387,22 @@ impl CliError {
 }
 
 fn sim_command(a: &SimArgs) -> Result<String, CliError> {
+    let flash = || match &a.flash {
+        Some(f) => Ok(f.clone()),
+        None => sim::store::default_path(),
+    };
     if a.terminal {
-        return sim::terminal::run(a.blocks);
+        return sim::terminal::run(a.blocks, &flash()?);
     }
     #[cfg(feature = "window")]
     {
-        sim::window::run(a.zoom)
+        let flash = flash()?;
+        eprintln!("leeward sim: flash image {}", flash.display());
+        sim::window::run(a.zoom, &flash)
     }
     #[cfg(not(feature = "window"))]
     {
-        let _ = a.zoom;
+        let _ = (a.zoom, flash);
         Err(CliError::input(
             "sim: this leeward was built without the window; build it with \
              `cargo run --release --features window -- sim` (needs apt-get install libsdl2-dev), \
@@ -444,6 +464,8 @@ fn main() -> ExitCode {
         Command::Sounding(a) => sounding_cmd::sounding(&a, cli.json),
         Command::Temp { file, elevation } => sounding_cmd::temp(&file, elevation, cli.json),
         Command::Demo => commands::demo(cli.json),
+        Command::Device(a) => link_cmd::device(&a),
+        Command::Link(a) => link_cmd::link(&a, cli.json),
         Command::Sim(_) if cli.json => Err(CliError::input(
             "sim: --json does not apply to the interactive simulator",
         )),

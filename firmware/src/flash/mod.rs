@@ -733,6 +733,31 @@ impl<F: MultiwriteNorFlash> FlashStore<F> {
 impl<F: NorFlash> Storage for FlashStore<F> {
     type Error = StoreError;
 
+    fn log_len(&mut self) -> u32 {
+        self.log_entries
+    }
+
+    fn log_entry(&mut self, index: u32, buf: &mut [u8]) -> Result<usize, StoreError> {
+        let mut i = 0u32;
+        let mut found: Result<usize, StoreError> = Err(StoreError::NotFound);
+        self.for_each_raw(|b| {
+            if i == index {
+                found = match buf.get_mut(..b.len()) {
+                    Some(dst) => {
+                        dst.copy_from_slice(b);
+                        Ok(b.len())
+                    }
+                    None => Err(StoreError::TooBig {
+                        bytes: b.len(),
+                        max: buf.len(),
+                    }),
+                };
+            }
+            i += 1;
+        })?;
+        found
+    }
+
     fn load_settings(&mut self) -> Option<Settings> {
         self.settings
     }

@@ -132,6 +132,15 @@ impl<'b> LinkServer<'b> {
                     send(w);
                 }
             }
+            Ok(Answer::Log { count, len }) => {
+                let r = Reply::LogEntry {
+                    count,
+                    bytes: self.staging.get(..len).unwrap_or(&[]),
+                };
+                if let Ok(w) = frame::encode(REPLY, seq, &r, &mut self.tx) {
+                    send(w);
+                }
+            }
             Ok(Answer::Entry {
                 count,
                 name,
@@ -289,7 +298,12 @@ impl<'b> LinkServer<'b> {
                 store.delete(name)?;
                 Ok(Answer::Plain(Reply::Done))
             }
-            Request::Log { .. } => Err(LinkError::NoLog),
+            Request::Log { index } => {
+                self.put = None;
+                let count = store.log_len();
+                let n = store.log_entry(index, self.staging)?;
+                Ok(Answer::Log { count, len: n })
+            }
             Request::SetClock { unix_s } => {
                 self.clock_unix_s = Some(unix_s);
                 Ok(Answer::Plain(Reply::Done))
@@ -307,6 +321,10 @@ enum Answer {
         crc: u32,
         kind: u8,
         offset: u32,
+        len: usize,
+    },
+    Log {
+        count: u32,
         len: usize,
     },
     Entry {

@@ -26,19 +26,21 @@ pub struct Device {
 }
 
 impl Device {
-    /// Power on with the simulator's store ([`store::open`]): on a blank store the
-    /// firmware puts in the demo station set and the settings, as on a new device.
-    pub fn power_on() -> Self {
-        let mut storage = store::open();
+    /// Power on with the store on the flash image `flash` ([`store::open`]): on a blank
+    /// store the firmware puts in the demo station set and the settings, as on a new
+    /// device.
+    pub fn power_on(flash: &std::path::Path) -> Result<Self, crate::CliError> {
+        let mut storage = store::open(flash)?;
         let app = App::power_on(&mut storage);
-        Device { app, storage }
+        Ok(Device { app, storage })
     }
 
     /// Press one key as the board's loop does: handle it, then carry out the storage
     /// effect. True when the screen changed.
     pub fn press(&mut self, key: Key) -> bool {
         let effect = self.app.handle(key);
-        // The simulated store is infallible (`MemStorage::Error` is `Infallible`).
+        // A failed settings write is the flash file failing: the file layer has said why
+        // on stderr, and the device goes on as the board does (it logs a warning).
         let _ = self.app.apply(effect, &mut self.storage);
         effect != Effect::Nothing
     }

@@ -31,7 +31,8 @@ pub fn run(script_path: &Path, out_dir: &Path, json: bool) -> Result<String, Cli
             out_dir.display()
         ))
     })?;
-    let mut device = Device::power_on();
+    let scratch = super::store::Scratch::new();
+    let mut device = Device::power_on(&scratch.0)?;
     let mut report = String::new();
     let mut taken = Vec::new();
     let mut presses = 0usize;

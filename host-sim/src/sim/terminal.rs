@@ -198,7 +198,7 @@ fn size() -> Option<(usize, usize)> {
 }
 
 /// Run the simulator in this terminal until Q (or Ctrl-C).
-pub fn run(blocks: Blocks) -> Result<String, crate::CliError> {
+pub fn run(blocks: Blocks, flash: &std::path::Path) -> Result<String, crate::CliError> {
     let fail = |m: String| crate::CliError::input(format!("sim --terminal: {m}"));
     let (lines, cols) = size().ok_or_else(|| fail("standard input is not a terminal".into()))?;
     let blocks = blocks.fit(cols).ok_or_else(|| {
@@ -217,7 +217,7 @@ pub fn run(blocks: Blocks) -> Result<String, crate::CliError> {
         );
     }
     let raw = RawMode::enter().map_err(fail)?;
-    let mut device = Device::power_on();
+    let mut device = Device::power_on(flash)?;
     let mut out = std::io::stdout().lock();
     let mut stdin = std::io::stdin().lock();
     // Clear, hide the cursor.

@@ -87,7 +87,7 @@ fn settings(zoom: u32) -> OutputSettings {
 }
 
 /// Open the window and run until it is closed (or Q is pressed).
-pub fn run(zoom: u32) -> Result<String, CliError> {
+pub fn run(zoom: u32, flash: &std::path::Path) -> Result<String, CliError> {
     if !(1..=MAX_ZOOM).contains(&zoom) {
         return Err(CliError::input(format!(
             "--zoom {zoom}: the zoom is a whole number from 1 to {MAX_ZOOM}"
@@ -97,7 +97,7 @@ pub fn run(zoom: u32) -> Result<String, CliError> {
     let sdl = sdl2::init().map_err(fail)?;
     let video = sdl.video().map_err(fail)?;
     let output = settings(zoom);
-    let mut device = Device::power_on();
+    let mut device = Device::power_on(flash)?;
     let first = compose(&device).to_rgb_output_image(&output);
     let (w, h) = {
         let b = first.as_image_buffer();
