@@ -223,7 +223,10 @@ fn condition_number(m: &[[f64; MAX_COLS]; MAX_COLS], n: usize) -> f64 {
                 }
             }
         }
-        if off < 1e-15 {
+        // The column norms' error is of the order of the square of the largest
+        // remaining cosine, so 1e-8 already gives them to ~1e-16: further sweeps would
+        // only cost time (each about 150 000 instructions on the device's soft f64).
+        if off < 1e-8 {
             break;
         }
     }

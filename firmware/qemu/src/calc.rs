@@ -511,7 +511,7 @@ pub fn breakdown(r: &mut Report) {
     let (m, prof) = measure(demo::sounding);
     part(
         r,
-        "demo ascent built (demo::sounding, 5 m hydrostatic steps)",
+        "demo ascent built (demo::sounding, 100 m hydrostatic steps)",
         &m,
     );
     if let Ok(prof) = prof {
