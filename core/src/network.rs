@@ -588,8 +588,8 @@ fn check_distinct(net: &Network) -> Result<()> {
             // The meridional separation is a lower bound of the great-circle distance:
             // most pairs are told apart by it without the trigonometry (which costs
             // about 20 000 instructions a pair on the device's soft f64).
-            let dlat_m = (a.pos.lat_deg - b.pos.lat_deg).abs().to_radians()
-                * crate::constants::EARTH_RADIUS;
+            let dlat_m =
+                (a.pos.lat_deg - b.pos.lat_deg).abs().to_radians() * crate::constants::EARTH_RADIUS;
             let close = dlat_m < MIN_STATION_SEPARATION_M
                 && distance_m(a.pos, b.pos) < MIN_STATION_SEPARATION_M;
             if a.id == b.id || close {

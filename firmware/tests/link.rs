@@ -582,3 +582,36 @@ fn a_put_with_one_damaged_frame_stores_the_data_whole_or_not_at_all() {
     // put complete; most damage stops it.
     assert!(none > 10_000, "whole {whole}, none {none}");
 }
+
+#[test]
+fn frames_built_from_the_documentation_alone_are_understood() {
+    // fuzz/make_link_seeds.py builds frames from docs/link.md with Python's own COBS
+    // and zlib's CRC-32, not from this code: a Hello, then a whole put of 40 bytes.
+    let seeds = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("../fuzz/seeds/link_frame");
+    let mut hello = std::fs::read(seeds.join("hello")).unwrap();
+    let (ty, seq, r): (u8, u16, Request<'_>) = frame::decode(&mut hello).unwrap();
+    assert_eq!(
+        (ty, seq, r),
+        (
+            REQUEST,
+            1,
+            Request::Hello {
+                version: PROTOCOL_VERSION
+            }
+        )
+    );
+    let put = std::fs::read(seeds.join("put")).unwrap();
+    let mut st = MemStorage::new();
+    let mut staging = [0u8; 64];
+    let mut dev = LinkServer::new(&mut staging);
+    let replies = exchange(&mut dev, &mut st, &put);
+    let data: Vec<u8> = (1..=40).collect();
+    assert_eq!(replies.len(), 4, "{replies:?}");
+    assert_eq!(
+        replies[3],
+        (6, format!("Stored {{ bytes: 40, crc: {} }}", crc32(&data)))
+    );
+    let mut back = [0u8; 40];
+    assert_eq!(st.get("T_1200", &mut back), Ok((DataKind::Sounding, 40)));
+    assert_eq!(&back[..], &data[..]);
+}

@@ -18,6 +18,8 @@ fuzz_target!(|data: &[u8]| {
         return;
     };
     let levels = report.profile.levels();
-    assert!(levels.windows(2).all(|w| w[1].pressure_pa < w[0].pressure_pa));
+    assert!(levels
+        .windows(2)
+        .all(|w| w[1].pressure_pa < w[0].pressure_pa));
     let _ = summarise(&report.profile, &SummaryOptions::default());
 });
