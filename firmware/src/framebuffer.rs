@@ -158,6 +158,18 @@ impl DrawTarget for FrameBuffer {
         };
         let (x0, x1) = (a.top_left.x as usize, br.x as usize);
         let on = color.is_on();
+        if x0 == 0 && x1 == WIDTH - 1 {
+            // Whole lines (the clear before every redraw): compare and fill by line.
+            let fill = if on { 0xFF } else { 0x00 };
+            for y in a.top_left.y as usize..=br.y as usize {
+                let line = &mut self.bits[y];
+                if line.iter().any(|&b| b != fill) {
+                    *line = [fill; LINE_BYTES];
+                    self.touched[y / 32] |= 1 << (y % 32);
+                }
+            }
+            return Ok(());
+        }
         for y in a.top_left.y as usize..=br.y as usize {
             let mut changed = false;
             for bx in x0 / 8..=x1 / 8 {
@@ -243,23 +255,37 @@ mod tests {
 
     #[test]
     fn fast_fill_matches_pixel_by_pixel() {
-        // Odd edges inside bytes, and a rectangle hanging off the screen.
-        for (x, y, w, h) in [
-            (3, 7, 13, 4),
-            (0, 0, 400, 1),
-            (390, 230, 30, 30),
-            (9, 9, 1, 1),
-        ] {
-            let r = Rectangle::new(Point::new(x, y), Size::new(w, h));
-            let mut fast = FrameBuffer::new();
-            fast.mark_clean();
-            fast.fill_solid(&r, BinaryColor::On).unwrap();
-            let mut slow = FrameBuffer::new();
-            slow.mark_clean();
-            slow.draw_iter(r.points().map(|p| Pixel(p, BinaryColor::On)))
-                .unwrap();
-            assert!(fast.bits == slow.bits, "{r:?}");
-            assert_eq!(fast.touched, slow.touched, "{r:?}");
+        // Odd edges inside bytes, a rectangle hanging off the screen, whole lines (the
+        // line-at-a-time path), on a patterned screen so that both colours change bits.
+        let pattern = |fb: &mut FrameBuffer| {
+            let pts = (0..240).flat_map(|y| (0..400).map(move |x| Point::new(x, y)));
+            fb.draw_iter(
+                pts.filter(|p| (p.x + 2 * p.y) % 3 == 0)
+                    .map(|p| Pixel(p, BinaryColor::On)),
+            )
+            .unwrap();
+            fb.mark_clean();
+        };
+        for color in [BinaryColor::On, BinaryColor::Off] {
+            for (x, y, w, h) in [
+                (3, 7, 13, 4),
+                (0, 0, 400, 1),
+                (-5, 3, 420, 6),
+                (0, 0, 400, 240),
+                (390, 230, 30, 30),
+                (9, 9, 1, 1),
+            ] {
+                let r = Rectangle::new(Point::new(x, y), Size::new(w, h));
+                let mut fast = FrameBuffer::new();
+                pattern(&mut fast);
+                fast.fill_solid(&r, color).unwrap();
+                let mut slow = FrameBuffer::new();
+                pattern(&mut slow);
+                slow.draw_iter(r.points().map(|p| Pixel(p, color))).unwrap();
+                assert!(fast.bits == slow.bits, "{r:?} {color:?}");
+                assert_eq!(fast.touched, slow.touched, "{r:?} {color:?}");
+                assert_eq!(fast.dirty_count(), slow.dirty_count(), "{r:?} {color:?}");
+            }
         }
     }
 
