@@ -149,7 +149,10 @@ fn help_documents_the_script_syntax_and_the_store() {
     let o = leeward(&["sim", "--help"]);
     let s = String::from_utf8_lossy(&o.stdout);
     assert!(s.contains("--terminal") && s.contains("--zoom"), "{s}");
-    assert!(s.contains("kept in memory for now"), "{s}");
+    assert!(
+        s.contains("flash image file") && s.contains("--flash"),
+        "{s}"
+    );
     assert!(s.contains("libsdl2-dev"), "{s}");
 }
 
