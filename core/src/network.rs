@@ -370,7 +370,6 @@ pub fn analyse(net: &Network, opts: &FitOptions) -> Result<NetworkFit> {
             got: n as u8,
         });
     }
-    check_distinct(net)?;
     let reference = match opts.reference {
         Reference::Point(p) => LatLon::new(p.lat_deg, p.lon_deg)?,
         Reference::Centroid => {
@@ -385,7 +384,10 @@ pub fn analyse(net: &Network, opts: &FitOptions) -> Result<NetworkFit> {
     let plane = TangentPlane::new(reference);
     let mut xy = [(0.0, 0.0); MAX_STATIONS];
     for (i, s) in net.stations.iter().enumerate() {
-        let d_km = distance_m(reference, s.pos) / 1000.0;
+        // The plane is azimuthal equidistant: the distance from the reference is the
+        // length of the station's plane vector (one great-circle solve, not two).
+        xy[i] = plane.to_xy(s.pos);
+        let d_km = sqrt(xy[i].0 * xy[i].0 + xy[i].1 * xy[i].1) / 1000.0;
         if d_km > MAX_STATION_DISTANCE_KM {
             return Err(Error::StationTooFar {
                 index: i as u8,
@@ -393,9 +395,9 @@ pub fn analyse(net: &Network, opts: &FitOptions) -> Result<NetworkFit> {
                 max_km: MAX_STATION_DISTANCE_KM,
             });
         }
-        xy[i] = plane.to_xy(s.pos);
     }
     let xy = &xy[..n];
+    check_distinct(net, xy)?;
     let aspect = spread_aspect(xy);
     if aspect > 1.0 / MIN_SPREAD_RATIO {
         return Err(Error::StationsCollinear { aspect });
@@ -580,17 +582,26 @@ pub fn analyse(net: &Network, opts: &FitOptions) -> Result<NetworkFit> {
     })
 }
 
-/// Refuse repeated identifiers and stations at the same place.
-fn check_distinct(net: &Network) -> Result<()> {
+/// Refuse a station given twice (same identifier, or within [`MIN_STATION_SEPARATION_M`]
+/// of another); `xy` are the stations' plane coordinates about the reference.
+fn check_distinct(net: &Network, xy: &[(f64, f64)]) -> Result<()> {
+    let mut r = [0.0; MAX_STATIONS];
+    for (ri, p) in r.iter_mut().zip(xy) {
+        *ri = sqrt(p.0 * p.0 + p.1 * p.1);
+    }
     for (i, a) in net.stations.iter().enumerate() {
         finite("height", a.height_m)?;
         for (j, b) in net.stations.iter().enumerate().take(i) {
-            // The meridional separation is a lower bound of the great-circle distance:
-            // most pairs are told apart by it without the trigonometry (which costs
-            // about 20 000 instructions a pair on the device's soft f64).
+            // Two lower bounds of the great-circle distance tell most pairs apart
+            // without its trigonometry (about 20 000 instructions a pair on the device's
+            // soft f64): the meridional separation, and the difference of the two
+            // distances from the reference (the triangle inequality; the plane is
+            // azimuthal equidistant).
             let dlat_m =
                 (a.pos.lat_deg - b.pos.lat_deg).abs().to_radians() * crate::constants::EARTH_RADIUS;
+            let dr_m = (r[i] - r[j]).abs();
             let close = dlat_m < MIN_STATION_SEPARATION_M
+                && dr_m < MIN_STATION_SEPARATION_M
                 && distance_m(a.pos, b.pos) < MIN_STATION_SEPARATION_M;
             if a.id == b.id || close {
                 return Err(Error::DuplicateStation {
