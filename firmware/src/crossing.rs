@@ -7,10 +7,10 @@
 //! maps them to pixels (plain longitude and latitude, no projection physics).
 
 use crate::field::{FieldSpec, Kind};
-use crate::plot::{dashed_row, inside, polyline, Axis};
+use crate::plot::{dashed_row, inside, polyline, scale_rows, Axis};
 use crate::settings::Settings;
 use crate::text::line;
-use crate::ui::{row_box, Align, Font, Inspect, Painter, BODY_TOP, BODY_W, LINE_H, MARGIN};
+use crate::ui::{Inspect, Painter, BODY_TOP, BODY_W, LINE_H, MARGIN};
 use embedded_graphics::pixelcolor::BinaryColor;
 use embedded_graphics::prelude::*;
 use embedded_graphics::primitives::Rectangle;
@@ -380,20 +380,7 @@ where
         lat_words(la0),
         lat_words(la1)
     ));
-    p.text(
-        row_box(0, MARGIN, BODY_W),
-        &t0,
-        Font::Body,
-        Align::Left,
-        false,
-    )?;
-    p.text(
-        row_box(1, MARGIN, BODY_W),
-        "thick ridge, dashed none, dots axis",
-        Font::Body,
-        Align::Left,
-        false,
-    )?;
+    scale_rows(p, &[&t0, "thick ridge, dashed none, dots axis"])?;
     plot_plan(p, v, PLAN_BOX)
 }
 
@@ -508,15 +495,7 @@ where
             zmax / 1e-5
         )),
     ];
-    for (r, t) in rows.iter().enumerate() {
-        p.text(
-            row_box(r, MARGIN, BODY_W),
-            t,
-            Font::Body,
-            Align::Left,
-            false,
-        )?;
-    }
+    scale_rows(p, &[&rows[0], &rows[1], &rows[2]])?;
     plot_section(p, v, SECTION_BOX)
 }
 

@@ -1,6 +1,6 @@
 //! What the small plots share: a linear value-to-pixel map and clipped polylines.
 
-use crate::ui::{Inspect, Painter};
+use crate::ui::{row_box, Align, Font, Inspect, Painter, BODY_W, MARGIN};
 use embedded_graphics::pixelcolor::BinaryColor;
 use embedded_graphics::prelude::*;
 use embedded_graphics::primitives::Rectangle;
@@ -66,6 +66,24 @@ where
             }
         }
         last = Some(q);
+    }
+    Ok(())
+}
+
+/// A plot's scales: one line of body text per row from the top of the body.
+pub fn scale_rows<D, I>(p: &mut Painter<'_, D, I>, rows: &[&str]) -> Result<(), D::Error>
+where
+    D: DrawTarget<Color = BinaryColor>,
+    I: Inspect,
+{
+    for (r, t) in rows.iter().enumerate() {
+        p.text(
+            row_box(r, MARGIN, BODY_W),
+            t,
+            Font::Body,
+            Align::Left,
+            false,
+        )?;
     }
     Ok(())
 }

@@ -4,10 +4,10 @@
 //! profile and the core's full summary (with a height per level) live on the stack only
 //! while the summary is made.
 
-use crate::plot::{dashed_row, inside, polyline, Axis};
+use crate::plot::{dashed_row, inside, polyline, scale_rows, Axis};
 use crate::settings::Settings;
 use crate::text::line;
-use crate::ui::{row_box, Align, Font, Inspect, Painter, BODY_TOP, BODY_W, LINE_H, MARGIN};
+use crate::ui::{Align, Font, Inspect, Painter, BODY_TOP, BODY_W, LINE_H, MARGIN};
 use embedded_graphics::pixelcolor::BinaryColor;
 use embedded_graphics::prelude::*;
 use embedded_graphics::primitives::Rectangle;
@@ -308,15 +308,7 @@ where
         )),
         line(format_args!("thick temp, thin dew pt, bar stable")),
     ];
-    for (r, text) in rows.iter().enumerate() {
-        p.text(
-            row_box(r, MARGIN, BODY_W),
-            text,
-            Font::Body,
-            Align::Left,
-            false,
-        )?;
-    }
+    scale_rows(p, &[&rows[0], &rows[1]])?;
     plot_profile(p, v, PROFILE_BOX)
 }
 
