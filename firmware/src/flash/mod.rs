@@ -339,6 +339,20 @@ impl<F: NorFlash> FlashStore<F> {
         }
     }
 
+    /// Write slot `i`'s commit record: the one item whose write makes a dataset's new
+    /// generation (or its new name) the one readers see.
+    fn write_commit(&mut self, i: usize, commit: &Commit) -> Result<(), StoreError> {
+        let mut cbytes = [0u8; 64];
+        let n = commit.encode(&mut cbytes)?;
+        store(
+            &mut self.flash,
+            &self.map_range,
+            &mut self.buf,
+            commit_key(i),
+            &cbytes[..n],
+        )
+    }
+
     fn read_slot(&mut self, i: usize) -> Result<Slot, StoreError> {
         let commit = match fetch(
             &mut self.flash,
@@ -534,15 +548,7 @@ impl<F: NorFlash> FlashStore<F> {
                 v,
             )?;
         }
-        let mut cbytes = [0u8; 64];
-        let n = commit.encode(&mut cbytes)?;
-        store(
-            &mut self.flash,
-            &self.map_range,
-            &mut self.buf,
-            commit_key(i),
-            &cbytes[..n],
-        )?;
+        self.write_commit(i, &commit)?;
         Ok(commit)
     }
 
@@ -857,15 +863,7 @@ impl<F: NorFlash> Storage for FlashStore<F> {
         };
         c.name.clear();
         c.name.push_str(to).map_err(|_| StoreError::BadName)?;
-        let mut cbytes = [0u8; 64];
-        let n = c.encode(&mut cbytes)?;
-        store(
-            &mut self.flash,
-            &self.map_range,
-            &mut self.buf,
-            commit_key(i),
-            &cbytes[..n],
-        )?;
+        self.write_commit(i, &c)?;
         self.slots[i] = if damaged {
             Slot::Damaged(c)
         } else {
