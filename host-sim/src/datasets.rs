@@ -73,10 +73,7 @@ fn name_for(p: &PushArgs) -> Result<String, CliError> {
 
 /// Tell the kind from the first line that is not a comment.
 fn sniff(path: &Path, text: &str) -> Result<PushKind, CliError> {
-    if text
-        .split_whitespace()
-        .any(|w| w.eq_ignore_ascii_case("TTAA") || w.eq_ignore_ascii_case("TTBB"))
-    {
+    if crate::sounding_cmd::looks_like_temp(text) {
         return Ok(PushKind::Sounding);
     }
     let header = text

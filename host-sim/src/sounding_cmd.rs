@@ -45,7 +45,8 @@ pub struct Loaded {
     pub problems_not_listed: u32,
 }
 
-fn looks_like_temp(text: &str) -> bool {
+/// Whether `text` reads as a TEMP report (a TTAA or TTBB group) rather than CSV.
+pub fn looks_like_temp(text: &str) -> bool {
     text.split_whitespace()
         .any(|w| w.eq_ignore_ascii_case("TTAA") || w.eq_ignore_ascii_case("TTBB"))
 }

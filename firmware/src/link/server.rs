@@ -62,10 +62,10 @@ impl<'b> LinkServer<'b> {
     /// Take bytes from the serial port; each complete frame is answered through `send`
     /// (a whole reply frame, its zero included).
     pub fn feed<S: Storage>(&mut self, bytes: &[u8], store: &mut S, send: &mut impl FnMut(&[u8])) {
+        // A frame is copied out of the splitter before it is answered, so the answer may
+        // use the rest of `self`; one buffer for the whole call, not one per byte.
+        let mut frame = [0u8; MAX_WIRE];
         for &b in bytes {
-            // The frame is taken out of the splitter before it is answered, so the
-            // answer may use the rest of `self`.
-            let mut frame = [0u8; MAX_WIRE];
             let n = match self.splitter.push(b) {
                 Splitting::More | Splitting::Empty => continue,
                 Splitting::Overflow => {
@@ -128,18 +128,14 @@ impl<'b> LinkServer<'b> {
                     offset,
                     bytes: self.staging.get(start..start + len).unwrap_or(&[]),
                 };
-                if let Ok(w) = frame::encode(REPLY, seq, &r, &mut self.tx) {
-                    send(w);
-                }
+                send_reply(&mut self.tx, seq, &r, send);
             }
             Ok(Answer::Log { count, len }) => {
                 let r = Reply::LogEntry {
                     count,
                     bytes: self.staging.get(..len).unwrap_or(&[]),
                 };
-                if let Ok(w) = frame::encode(REPLY, seq, &r, &mut self.tx) {
-                    send(w);
-                }
+                send_reply(&mut self.tx, seq, &r, send);
             }
             Ok(Answer::Entry {
                 count,
@@ -162,11 +158,7 @@ impl<'b> LinkServer<'b> {
     }
 
     fn reply(&mut self, seq: u16, r: &Reply<'_>, send: &mut impl FnMut(&[u8])) {
-        // Every reply is far smaller than a frame; a failure here would be a bug, and
-        // the host then times out and asks again.
-        if let Ok(w) = frame::encode(REPLY, seq, r, &mut self.tx) {
-            send(w);
-        }
+        send_reply(&mut self.tx, seq, r, send);
     }
 
     fn handle<S: Storage>(&mut self, req: Request<'_>, store: &mut S) -> Result<Answer, LinkError> {
@@ -334,6 +326,15 @@ enum Answer {
         bytes: u32,
         free: u32,
     },
+}
+
+/// Encode reply `r` into `tx` and send it. Every reply is far smaller than a frame; a
+/// failure here would be a bug, and the host then times out and asks again. (A free
+/// function, so that a reply borrowing the staging buffer can still be sent.)
+fn send_reply(tx: &mut [u8], seq: u16, r: &Reply<'_>, send: &mut impl FnMut(&[u8])) {
+    if let Ok(w) = frame::encode(REPLY, seq, r, tx) {
+        send(w);
+    }
 }
 
 fn len_u32(n: usize) -> u32 {
