@@ -183,7 +183,15 @@ pub const SONDE_400_HPA_ERROR_M: f64 = 40.0;
 /// significant levels and the standard isobaric surfaces to 100 hPa, rounded as a
 /// radiosonde reports (0.1 hPa, whole metres, 0.1 °C, whole degrees and knots).
 pub fn sounding() -> Result<crate::sounding::Profile> {
-    sounding_with_step(SONDE_STEP_M)
+    let mut prof = crate::sounding::Profile::default();
+    sounding_into(&mut prof)?;
+    Ok(prof)
+}
+
+/// [`sounding`] written into `prof` (emptied first) of any capacity that holds its 15
+/// levels: the handheld builds it in place rather than move a profile on its stack.
+pub fn sounding_into<const N: usize>(prof: &mut crate::sounding::Profile<N>) -> Result<()> {
+    sounding_with_step(SONDE_STEP_M, prof)
 }
 
 /// Height step of the demo ascent's hydrostatic integration, m. The midpoint rule's error
@@ -192,9 +200,12 @@ pub fn sounding() -> Result<crate::sounding::Profile> {
 /// a fiftieth of the cost of the 5 m step first used.
 const SONDE_STEP_M: f64 = 100.0;
 
-fn sounding_with_step(dz: f64) -> Result<crate::sounding::Profile> {
+fn sounding_with_step<const N: usize>(
+    dz: f64,
+    prof: &mut crate::sounding::Profile<N>,
+) -> Result<()> {
     use crate::sounding::thermo::{mixing_ratio_from_dewpoint, virtual_temperature};
-    use crate::sounding::{Level, LevelKind, Profile, StationInfo};
+    use crate::sounding::{Level, LevelKind, StationInfo};
     let tv = |z: f64, p: f64| {
         let t = sonde_temperature_k(z);
         let r = mixing_ratio_from_dewpoint(t - sonde_dewpoint_depression_k(z), p).unwrap_or(0.0);
@@ -214,7 +225,7 @@ fn sounding_with_step(dz: f64) -> Result<crate::sounding::Profile> {
     };
     // "TCOL" fits the 8-character identifier.
     let _ = station.id.push_str("TCOL");
-    let mut prof = Profile::new(station);
+    prof.reset(station);
     let standard = [
         70_000.0, 50_000.0, 40_000.0, 30_000.0, 25_000.0, 20_000.0, 15_000.0, 10_000.0,
     ];
@@ -275,7 +286,7 @@ fn sounding_with_step(dz: f64) -> Result<crate::sounding::Profile> {
         z = z1;
         p = p1;
     }
-    Ok(prof)
+    Ok(())
 }
 
 #[cfg(test)]
@@ -323,7 +334,8 @@ mod sonde_tests {
         // Rounded as a radiosonde reports, the ascent is the same with the step used and
         // with one twenty times finer; the step does not show in the demo.
         let used = sounding().unwrap();
-        let fine = sounding_with_step(SONDE_STEP_M / 20.0).unwrap();
+        let mut fine = crate::sounding::Profile::default();
+        sounding_with_step(SONDE_STEP_M / 20.0, &mut fine).unwrap();
         assert_eq!(used.levels(), fine.levels());
     }
 

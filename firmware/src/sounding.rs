@@ -1,8 +1,10 @@
 //! The Sounding task: the summary of the current sounding (for now the demo ascent from
 //! Tessel Col, checked against the demo ridge), kept as the few core results the result
 //! pages show, and a thinned copy of the temperature profile for the profile plot. The
-//! profile and the core's full summary (with a height per level) live on the stack only
-//! while the summary is made.
+//! profile ([`DEVICE_LEVELS`] levels) and the core's full summary (with a height per
+//! level) live on the stack only while the summary is made, each built once in place
+//! (`sounding_into`, `summarise_into`) rather than moved through `Result`s: moved, they
+//! took over 100 KB of stack.
 
 use crate::plot::{dashed_row, inside, polyline, scale_rows, Axis};
 use crate::settings::Settings;
@@ -16,8 +18,8 @@ use leeward_core::sounding::barotropy::Barotropy;
 use leeward_core::sounding::lid::Lid;
 use leeward_core::sounding::ridge_flow::{RidgeCheck, RidgeFlow};
 use leeward_core::sounding::stability::Tropopauses;
-use leeward_core::sounding::summary::{summarise, Summary, SummaryOptions};
-use leeward_core::sounding::Profile;
+use leeward_core::sounding::summary::{summarise_into, Summary, SummaryOptions};
+use leeward_core::sounding::{Profile, StationInfo};
 use leeward_core::{Error, Result};
 
 /// What the Sounding pages show, each part as the core returned it.
@@ -44,6 +46,14 @@ pub struct SoundingView {
     /// The temperature profile, thinned for the plot.
     pub plot: PlotProfile,
 }
+
+/// The most levels of a sounding on the device: a TEMP Part A+B report or a thinned
+/// ascent fits. The profile is 88 bytes a level and lives on the stack while the summary
+/// is made, so this sets the deepest stack of the Sounding task.
+pub const DEVICE_LEVELS: usize = 128;
+
+/// A sounding as the device holds it.
+pub type DeviceProfile = Profile<DEVICE_LEVELS>;
 
 /// Levels kept for the profile plot: more than a 100-pixel-high plot can show apart.
 pub const PLOT_LEVELS: usize = 64;
@@ -73,11 +83,11 @@ pub struct PlotProfile {
 
 impl PlotProfile {
     /// The plottable levels of `profile` with the summary's best heights.
-    pub fn of(profile: &Profile, s: &Summary) -> Self {
+    pub fn of<const N: usize>(profile: &Profile<N>, s: &Summary<N>) -> Self {
         let mut all = 0usize;
         let usable = |i: usize| -> Option<PlotLevel> {
             let lv = profile.levels().get(i)?;
-            let z = (*s.heights.best_m.get(i)?)?;
+            let z = s.heights.best_m(i)?;
             let t = lv.temperature_k?;
             (z.is_finite() && t.is_finite()).then_some(PlotLevel {
                 height_m: z as f32,
@@ -118,7 +128,7 @@ impl PlotProfile {
 
 impl SoundingView {
     /// The parts of a core summary the pages show.
-    pub fn of(profile: &Profile, s: &Summary) -> Self {
+    pub fn of<const N: usize>(profile: &Profile<N>, s: &Summary<N>) -> Self {
         let mut id = heapless::String::new();
         let _ = id.push_str(&profile.station.id);
         SoundingView {
@@ -158,8 +168,10 @@ pub fn demo_options() -> SummaryOptions {
 
 /// Summarise the demo sounding.
 pub fn demo_view() -> Result<SoundingView> {
-    let profile = demo::sounding()?;
-    let summary = summarise(&profile, &demo_options())?;
+    let mut profile = DeviceProfile::empty(StationInfo::default());
+    demo::sounding_into(&mut profile)?;
+    let mut summary = Summary::empty();
+    summarise_into(&profile, &demo_options(), &mut summary)?;
     Ok(SoundingView::of(&profile, &summary))
 }
 
@@ -315,7 +327,8 @@ where
 #[cfg(test)]
 mod tests {
     use super::*;
-    use leeward_core::sounding::{Level, StationInfo};
+    use leeward_core::sounding::summary::summarise;
+    use leeward_core::sounding::Level;
 
     /// A 256-level ascent: 6.5 K/km (the standard atmosphere's lapse rate, US Standard
     /// Atmosphere 1976) below 11 km, isothermal above, pressure with an 8 km scale height.
@@ -358,6 +371,15 @@ mod tests {
             assert!((l.temperature_c as f64 - t).abs() < 1e-4);
             assert_eq!(l.dewpoint_c.is_some(), src.dewpoint_k.is_some());
         }
+    }
+
+    #[test]
+    fn the_view_built_in_place_equals_the_core_summary_of_the_full_profile() {
+        // Differential: the device's 128-level profile and in-place summary against the
+        // core's own path (256 levels, values moved).
+        let p = demo::sounding().unwrap();
+        let s = summarise(&p, &demo_options()).unwrap();
+        assert_eq!(demo_view().unwrap(), SoundingView::of(&p, &s));
     }
 
     #[test]

@@ -704,7 +704,7 @@ fn sounding_summary_of_the_demo_ascent() {
     assert_eq!(app.screen(), Screen::SoundingResult(3));
     let shot = Shot::of(&app);
     shot.assert_clean("sounding profile");
-    let ground = truth.heights.best_m[0].unwrap();
+    let ground = truth.heights.best_m(0).unwrap();
     let top = tp.height_m + 3000.0;
     let scales = &shot.texts[2].text;
     assert!(
@@ -715,7 +715,7 @@ fn sounding_summary_of_the_demo_ascent() {
     let temps = profile
         .levels()
         .iter()
-        .zip(&truth.heights.best_m)
+        .zip(truth.heights.best_all())
         .filter(|(_, z)| z.is_some_and(|z| z <= top))
         .flat_map(|(l, _)| [l.temperature_k, l.dewpoint_k])
         .flatten()
@@ -733,7 +733,7 @@ fn sounding_summary_of_the_demo_ascent() {
     let plot = &app.sounding().unwrap().plot;
     assert_eq!(plot.levels.len(), profile.len());
     for (i, l) in plot.levels.iter().enumerate() {
-        assert!((l.height_m as f64 - truth.heights.best_m[i].unwrap()).abs() < 0.01);
+        assert!((l.height_m as f64 - truth.heights.best_m(i).unwrap()).abs() < 0.01);
     }
     press(&mut app, &[Right]);
     assert_eq!(app.screen(), Screen::SoundingResult(3), "four pages only");

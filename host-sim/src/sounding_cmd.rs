@@ -180,10 +180,10 @@ fn levels_parts(p: &Profile, heights: Option<&Heights>) -> (String, Value) {
     let mut rows = Vec::new();
     for (i, l) in p.levels().iter().enumerate() {
         let th = LevelThermo::of(l);
-        let computed = heights.and_then(|hs| hs.computed_m[i]);
+        let computed = heights.and_then(|hs| hs.computed_m(i));
         let diff = heights.and_then(|hs| hs.difference_m(p, i));
         let flagged = heights.is_some_and(|hs| hs.is_flagged(p, i));
-        let best = heights.and_then(|hs| hs.best_m[i]).or(l.height_m);
+        let best = heights.and_then(|hs| hs.best_m(i)).or(l.height_m);
         h += &format!(
             "{:>7.1} {:>7} {:>7} {:>6} {:>8} {:>7} {:>7} {:>5} {:>12}  {}\n",
             l.pressure_pa / 100.0,

@@ -569,7 +569,7 @@ fn hypsometric_heights_match_metpy_thickness() {
             // Source: MetPy 1.7.1, metpy.calc.thickness_hydrostatic with the mixing
             // ratio, from the lowest level to level i (the file's heights): the same
             // trapezoid in ln p, so only Rd and Tv differ (thickness_virtual_bound).
-            let ours = h.computed_m[i].expect("every level has T") - s.z(0);
+            let ours = h.computed_m(i).expect("every level has T") - s.z(0);
             let metpy = s.z(i) - s.z(0);
             let tol = thickness_virtual_bound(&lv[..=i]) * metpy + 1e-9;
             check(&format!("{} height of level {i}", s.name), ours, metpy, tol);
@@ -588,7 +588,7 @@ fn thickness_matches_metpy() {
             // mixing_ratio=mixing_ratio(saturation_vapor_pressure(Td), p)) over levels
             // lo..hi, against the difference of leeward's hypsometric heights.
             let metpy = value(r);
-            let ours = h.computed_m[r.hi].expect("T") - h.computed_m[r.lo].expect("T");
+            let ours = h.computed_m(r.hi).expect("T") - h.computed_m(r.lo).expect("T");
             let tol = thickness_virtual_bound(&lv[r.lo..=r.hi]) * metpy + 1e-9;
             check(
                 &format!("{} virtual thickness {}-{}", s.name, r.lo, r.hi),

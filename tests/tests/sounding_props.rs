@@ -65,7 +65,7 @@ proptest! {
         };
         // Any outcome but a panic; where heights exist, the computed ones rise upward.
         if let Ok(s) = summarise(&p, &opts) {
-            let z: Vec<f64> = s.heights.computed_m.iter().flatten().copied().collect();
+            let z: Vec<f64> = s.heights.computed_all().flatten().collect();
             prop_assert!(z.windows(2).all(|w| w[1] > w[0]));
         }
         let mut out = String::new();

@@ -77,7 +77,7 @@ fn hypsometric_heights_match_the_standard_surfaces() {
             .iter()
             .position(|l| (l.pressure_pa - hpa * 100.0).abs() < 0.01)
             .unwrap();
-        let got = h.computed_m[i].unwrap();
+        let got = h.computed_m(i).unwrap();
         assert!(
             (got - z).abs() <= 2.0,
             "{hpa} hPa: computed {got:.1} m, standard {z} m"

@@ -162,9 +162,9 @@ fn turn(a: &Wind, b: &Wind) -> f64 {
 }
 
 /// Check the layer between `base_m` and `top_m` at latitude `lat_deg`.
-pub fn barotropy(
-    profile: &Profile,
-    heights: &Heights,
+pub fn barotropy<const N: usize>(
+    profile: &Profile<N>,
+    heights: &Heights<N>,
     base_m: f64,
     top_m: f64,
     lat_deg: f64,

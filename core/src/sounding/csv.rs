@@ -466,7 +466,7 @@ fn number(out: &mut impl Write, v: f64) -> fmt::Result {
 
 /// Write `profile` as leeward's sounding CSV (°C, knots), metadata first; values carry at
 /// most six decimals.
-pub fn write(profile: &Profile, out: &mut impl Write) -> fmt::Result {
+pub fn write<const N: usize>(profile: &Profile<N>, out: &mut impl Write) -> fmt::Result {
     let s = &profile.station;
     if !s.id.is_empty() {
         writeln!(out, "# station={}", s.id)?;

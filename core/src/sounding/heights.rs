@@ -2,8 +2,8 @@
 
 use heapless::Vec;
 
-use super::profile::{Profile, MAX_LEVELS};
-use super::thermo::LevelThermo;
+use super::profile::{Level, Profile, MAX_LEVELS};
+use super::thermo::level_virtual_temperature_k;
 use crate::constants::{G0, R_DRY};
 use crate::error::{Error, Result};
 
@@ -28,15 +28,18 @@ pub enum HeightStart {
     },
 }
 
-/// Hypsometric heights of every level and their comparison with the reported ones.
+/// Hypsometric heights of every level of a profile of up to `N` levels, and their
+/// comparison with the reported ones. A missing height is stored as NaN and read back as
+/// `None` (half the memory of `Option<f64>`, which matters on the handheld).
 #[derive(Debug, Clone, PartialEq)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize, serde::Deserialize))]
-pub struct Heights {
-    /// Height integrated from the start level, gpm; `None` where the temperature needed
-    /// to reach the level is missing.
-    pub computed_m: Vec<Option<f64>, MAX_LEVELS>,
-    /// Best height of each level: the reported one where there is one, else the computed.
-    pub best_m: Vec<Option<f64>, MAX_LEVELS>,
+pub struct Heights<const N: usize = MAX_LEVELS> {
+    /// Height integrated from the start level, gpm; NaN where the temperature needed to
+    /// reach the level is missing.
+    computed: Vec<f64, N>,
+    /// Best height of each level: the reported one where there is one, else the
+    /// computed; NaN where neither.
+    best: Vec<f64, N>,
     /// Where the integration started.
     pub start: HeightStart,
     /// Tolerance of the check, m.
@@ -47,31 +50,73 @@ pub struct Heights {
     pub worst: Option<(u16, f64)>,
 }
 
-impl Heights {
+fn stored(z: Option<f64>) -> f64 {
+    z.unwrap_or(f64::NAN)
+}
+
+fn read(z: f64) -> Option<f64> {
+    (!z.is_nan()).then_some(z)
+}
+
+impl<const N: usize> Heights<N> {
+    /// Heights of no levels (what [`heights_into`] starts from).
+    pub fn empty() -> Self {
+        Heights {
+            computed: Vec::new(),
+            best: Vec::new(),
+            start: HeightStart::ReportedSurface,
+            tolerance_m: DEFAULT_HEIGHT_TOLERANCE_M,
+            flagged: 0,
+            worst: None,
+        }
+    }
+
+    /// Height of level `i` integrated from the start level, gpm (`None` where the
+    /// temperature needed to reach it is missing, or past the top).
+    pub fn computed_m(&self, i: usize) -> Option<f64> {
+        read(*self.computed.get(i)?)
+    }
+
+    /// Best height of level `i`, gpm: the reported one where there is one, else the
+    /// computed one.
+    pub fn best_m(&self, i: usize) -> Option<f64> {
+        read(*self.best.get(i)?)
+    }
+
+    /// The computed height of every level, ground up.
+    pub fn computed_all(&self) -> impl Iterator<Item = Option<f64>> + '_ {
+        self.computed.iter().map(|z| read(*z))
+    }
+
+    /// The best height of every level, ground up.
+    pub fn best_all(&self) -> impl Iterator<Item = Option<f64>> + '_ {
+        self.best.iter().map(|z| read(*z))
+    }
+
     /// Reported minus computed height of level `i`, m, where both exist.
-    pub fn difference_m(&self, profile: &Profile, i: usize) -> Option<f64> {
+    pub fn difference_m(&self, profile: &Profile<N>, i: usize) -> Option<f64> {
         let reported = profile.levels().get(i)?.height_m?;
-        let computed = (*self.computed_m.get(i)?)?;
+        let computed = self.computed_m(i)?;
         Some(reported - computed)
     }
 
     /// Levels that have a best height and a value of `get`, as (height m, value), ground up.
     pub fn samples<'a>(
         &'a self,
-        profile: &'a Profile,
+        profile: &'a Profile<N>,
         get: impl Fn(&super::Level) -> Option<f64> + 'a,
     ) -> impl Iterator<Item = (f64, f64)> + 'a {
         profile
             .levels()
             .iter()
-            .zip(self.best_m.iter())
-            .filter_map(move |(l, z)| Some(((*z)?, get(l)?)))
+            .zip(self.best_all())
+            .filter_map(move |(l, z)| Some((z?, get(l)?)))
     }
 
     /// Lowest and highest heights, m, at which `get` has a value.
     pub fn span(
         &self,
-        profile: &Profile,
+        profile: &Profile<N>,
         get: impl Fn(&super::Level) -> Option<f64>,
     ) -> Option<(f64, f64)> {
         let mut it = self.samples(profile, get);
@@ -84,7 +129,7 @@ impl Heights {
     /// around it that have a value (`None` outside them).
     pub fn value_at(
         &self,
-        profile: &Profile,
+        profile: &Profile<N>,
         z_m: f64,
         get: impl Fn(&super::Level) -> Option<f64>,
     ) -> Option<f64> {
@@ -103,38 +148,29 @@ impl Heights {
     }
 
     /// Whether level `i` fails the check.
-    pub fn is_flagged(&self, profile: &Profile, i: usize) -> bool {
+    pub fn is_flagged(&self, profile: &Profile<N>, i: usize) -> bool {
         self.difference_m(profile, i)
             .is_some_and(|d| libm::fabs(d) > self.tolerance_m)
     }
 }
 
-/// Virtual temperature of every level, interpolated linearly in ln p across levels
-/// without a temperature; `None` outside the levels that have one.
-fn virtual_temperatures(profile: &Profile) -> Vec<Option<f64>, MAX_LEVELS> {
-    let levels = profile.levels();
-    let mut tv: Vec<Option<f64>, MAX_LEVELS> = levels
-        .iter()
-        .map(|l| LevelThermo::of(l).virtual_temperature_k)
-        .collect();
-    for i in 0..levels.len() {
-        if tv[i].is_some() {
-            continue;
-        }
-        let below = (0..i).rev().find(|&k| tv[k].is_some());
-        let above = (i + 1..levels.len()).find(|&k| tv[k].is_some());
-        if let (Some(b), Some(a)) = (below, above) {
-            let (lb, la, li) = (
-                libm::log(levels[b].pressure_pa),
-                libm::log(levels[a].pressure_pa),
-                libm::log(levels[i].pressure_pa),
-            );
-            if let (Some(tb), Some(ta)) = (tv[b], tv[a]) {
-                tv[i] = Some(tb + (ta - tb) * (li - lb) / (la - lb));
-            }
-        }
+/// Virtual temperature of level `i`, interpolated linearly in ln p between the nearest
+/// levels below and above that have one where the level lacks it; `None` outside them.
+/// Worked out level by level rather than kept in a table: a table is a kilobyte or two of
+/// stack on the handheld, and most levels have their own temperature.
+fn virtual_temperature_at(levels: &[Level], i: usize) -> Option<f64> {
+    let own = |k: usize| level_virtual_temperature_k(&levels[k]);
+    if let Some(t) = own(i) {
+        return Some(t);
     }
-    tv
+    let (b, tb) = (0..i).rev().find_map(|k| Some((k, own(k)?)))?;
+    let (a, ta) = (i + 1..levels.len()).find_map(|k| Some((k, own(k)?)))?;
+    let (lb, la, li) = (
+        libm::log(levels[b].pressure_pa),
+        libm::log(levels[a].pressure_pa),
+        libm::log(levels[i].pressure_pa),
+    );
+    Some(tb + (ta - tb) * (li - lb) / (la - lb))
 }
 
 /// Thickness between two levels, gpm, by the hypsometric equation with the mean virtual
@@ -150,7 +186,29 @@ pub fn thickness_m(p1_pa: f64, tv1_k: f64, p2_pa: f64, tv2_k: f64) -> f64 {
 /// The integration starts at the lowest level: at its reported height, or else at
 /// `elevation_m` (the station elevation; the profile's own if `None`), or else at the
 /// lowest level with a reported height, from which it runs both ways.
-pub fn heights(profile: &Profile, elevation_m: Option<f64>, tolerance_m: f64) -> Result<Heights> {
+pub fn heights<const N: usize>(
+    profile: &Profile<N>,
+    elevation_m: Option<f64>,
+    tolerance_m: f64,
+) -> Result<Heights<N>> {
+    let mut out = Heights::empty();
+    heights_into(profile, elevation_m, tolerance_m, &mut out)?;
+    Ok(out)
+}
+
+/// [`heights`] written into `out`, which is overwritten whole (on an error it holds no
+/// levels). For callers that keep the heights in place rather than move them.
+pub fn heights_into<const N: usize>(
+    profile: &Profile<N>,
+    elevation_m: Option<f64>,
+    tolerance_m: f64,
+    out: &mut Heights<N>,
+) -> Result<()> {
+    out.computed.clear();
+    out.best.clear();
+    out.tolerance_m = tolerance_m;
+    out.flagged = 0;
+    out.worst = None;
     let levels = profile.levels();
     if levels.is_empty() {
         return Err(Error::NoData {
@@ -175,57 +233,55 @@ pub fn heights(profile: &Profile, elevation_m: Option<f64>, tolerance_m: f64) ->
             what: "a height or a station elevation to start the height integration",
         });
     };
+    out.start = start;
 
-    let tv = virtual_temperatures(profile);
-    let mut computed: Vec<Option<f64>, MAX_LEVELS> = levels.iter().map(|_| None).collect();
-    computed[start_index] = Some(start_height);
+    // Both tables have exactly as many entries as the profile has levels (at most N).
+    for _ in levels {
+        let _ = out.computed.push(f64::NAN);
+    }
+    out.computed[start_index] = start_height;
+    let mut tv_below = virtual_temperature_at(levels, start_index);
     for i in start_index + 1..levels.len() {
-        computed[i] = match (computed[i - 1], tv[i - 1], tv[i]) {
+        let tv = virtual_temperature_at(levels, i);
+        out.computed[i] = match (read(out.computed[i - 1]), tv_below, tv) {
             (Some(z), Some(t1), Some(t2)) => {
-                Some(z + thickness_m(levels[i - 1].pressure_pa, t1, levels[i].pressure_pa, t2))
+                z + thickness_m(levels[i - 1].pressure_pa, t1, levels[i].pressure_pa, t2)
             }
-            _ => None,
+            _ => f64::NAN,
         };
+        tv_below = tv;
     }
+    let mut tv_above = virtual_temperature_at(levels, start_index);
     for i in (0..start_index).rev() {
-        computed[i] = match (computed[i + 1], tv[i + 1], tv[i]) {
+        let tv = virtual_temperature_at(levels, i);
+        out.computed[i] = match (read(out.computed[i + 1]), tv_above, tv) {
             (Some(z), Some(t1), Some(t2)) => {
-                Some(z - thickness_m(levels[i].pressure_pa, t2, levels[i + 1].pressure_pa, t1))
+                z - thickness_m(levels[i].pressure_pa, t2, levels[i + 1].pressure_pa, t1)
             }
-            _ => None,
+            _ => f64::NAN,
         };
+        tv_above = tv;
     }
-
-    let best: Vec<Option<f64>, MAX_LEVELS> = levels
-        .iter()
-        .zip(computed.iter())
-        .map(|(l, c)| l.height_m.or(*c))
-        .collect();
-    let mut out = Heights {
-        computed_m: computed,
-        best_m: best,
-        start,
-        tolerance_m,
-        flagged: 0,
-        worst: None,
-    };
+    for (l, c) in levels.iter().zip(out.computed.iter()) {
+        let _ = out.best.push(stored(l.height_m.or(read(*c))));
+    }
     for i in 0..levels.len() {
         if let Some(d) = out.difference_m(profile, i) {
             if libm::fabs(d) > tolerance_m {
-                out.flagged += 1;
+                out.flagged = out.flagged.saturating_add(1);
             }
             if out.worst.is_none_or(|(_, w)| libm::fabs(d) > libm::fabs(w)) {
                 out.worst = Some((i as u16, d));
             }
         }
     }
-    Ok(out)
+    Ok(())
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::sounding::profile::{Level, StationInfo};
+    use crate::sounding::profile::StationInfo;
     use approx::assert_relative_eq;
 
     fn isothermal(t_k: f64) -> Profile {
@@ -244,7 +300,7 @@ mod tests {
     fn isothermal_thickness_1000_to_500() {
         // FIELD-NOTES §6 (computed): 273.15 K isothermal, 1000 to 500 hPa: 5542 m.
         let h = heights(&isothermal(273.15), Some(0.0), 20.0).unwrap();
-        let z500 = h.computed_m[3].unwrap();
+        let z500 = h.computed_m(3).unwrap();
         assert!((z500 - 5542.0).abs() < 1.0, "{z500}");
         assert_eq!(h.start, HeightStart::StationElevation);
         assert_eq!(h.flagged, 0);
@@ -273,7 +329,7 @@ mod tests {
         assert_eq!(i, 3);
         assert_relative_eq!(d, 60.0, epsilon = 1.0);
         assert!(h.is_flagged(&p, 3) && !h.is_flagged(&p, 2));
-        assert_eq!(h.best_m[3], Some(5602.0));
+        assert_eq!(h.best_m(3), Some(5602.0));
     }
 
     #[test]
@@ -289,7 +345,7 @@ mod tests {
         }
         let h = heights(&p, None, 20.0).unwrap();
         assert_eq!(h.start, HeightStart::LowestReported { index: 2 });
-        let z0 = h.computed_m[0].unwrap();
+        let z0 = h.computed_m(0).unwrap();
         let expected = 3000.0 - R_DRY / G0 * 250.0 * libm::log(1000.0 / 700.0);
         assert_relative_eq!(z0, expected, epsilon = 1e-6);
     }

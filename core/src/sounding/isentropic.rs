@@ -29,35 +29,39 @@ pub struct IsentropicPv {
 
 /// Pressure (and height) where θ first reaches `theta_k`, going up from the ground:
 /// ln p and z interpolated linearly in θ between the two levels around it.
-fn find_theta(profile: &Profile, heights: &Heights, theta_k: f64) -> Option<(f64, Option<f64>)> {
+fn find_theta<const N: usize>(
+    profile: &Profile<N>,
+    heights: &Heights<N>,
+    theta_k: f64,
+) -> Option<(f64, Option<f64>)> {
     let mut prev: Option<(f64, f64, Option<f64>)> = None;
-    for (l, z) in profile.levels().iter().zip(heights.best_m.iter()) {
+    for (l, z) in profile.levels().iter().zip(heights.best_all()) {
         let Some(t) = l.temperature_k else { continue };
         let th = potential_temperature(t, l.pressure_pa);
         let lp = libm::log(l.pressure_pa);
         if th == theta_k {
-            return Some((l.pressure_pa, *z));
+            return Some((l.pressure_pa, z));
         }
         if let Some((th0, lp0, z0)) = prev {
             if (th0 - theta_k) * (th - theta_k) < 0.0 {
                 let w = (theta_k - th0) / (th - th0);
-                let zi = match (z0, *z) {
+                let zi = match (z0, z) {
                     (Some(a), Some(b)) => Some(a + w * (b - a)),
                     _ => None,
                 };
                 return Some((libm::exp(lp0 + w * (lp - lp0)), zi));
             }
         }
-        prev = Some((th, lp, *z));
+        prev = Some((th, lp, z));
     }
     None
 }
 
 /// Isentropic layer PV between `theta_low_k` and `theta_high_k` for vorticity `zeta`
 /// and Coriolis parameter `f`, s⁻¹.
-pub fn layer_pv(
-    profile: &Profile,
-    heights: &Heights,
+pub fn layer_pv<const N: usize>(
+    profile: &Profile<N>,
+    heights: &Heights<N>,
     theta_low_k: f64,
     theta_high_k: f64,
     zeta: f64,

@@ -238,24 +238,50 @@ pub struct StationInfo {
     pub time: Option<ObsTime>,
 }
 
-/// A sounding: station information and up to [`MAX_LEVELS`] levels ordered from the
-/// ground up (pressure strictly decreasing).
-#[derive(Debug, Clone, PartialEq, Default)]
+/// A sounding: station information and up to `N` levels ordered from the ground up
+/// (pressure strictly decreasing). `N` is [`MAX_LEVELS`] unless a caller with less memory
+/// (the handheld) chooses fewer; every analysis works on any `N`.
+#[derive(Debug, Clone, PartialEq)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize, serde::Deserialize))]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
-pub struct Profile {
+pub struct Profile<const N: usize = MAX_LEVELS> {
     /// Where and when.
     pub station: StationInfo,
-    levels: Vec<Level, MAX_LEVELS>,
+    levels: Vec<Level, N>,
+}
+
+impl Default for Profile {
+    fn default() -> Self {
+        Profile::new(StationInfo::default())
+    }
 }
 
 impl Profile {
-    /// An empty profile for `station`.
+    /// An empty profile of [`MAX_LEVELS`] levels for `station`.
     pub fn new(station: StationInfo) -> Self {
+        Profile::empty(station)
+    }
+}
+
+impl<const N: usize> Profile<N> {
+    /// An empty profile of `N` levels for `station`.
+    pub fn empty(station: StationInfo) -> Self {
         Profile {
             station,
             levels: Vec::new(),
         }
+    }
+
+    /// Drop every level and set the station: the profile is then as [`Profile::empty`]
+    /// made it, without a new value being built (and moved) on the stack.
+    pub fn reset(&mut self, station: StationInfo) {
+        self.station = station;
+        self.levels.clear();
+    }
+
+    /// The most levels the profile holds.
+    pub const fn capacity(&self) -> usize {
+        N
     }
 
     /// The levels, ground up.
@@ -298,7 +324,7 @@ impl Profile {
             .push(level)
             .map_err(|_| Error::CapacityExceeded {
                 what: "sounding levels",
-                capacity: MAX_LEVELS as u16,
+                capacity: N as u16,
             })
     }
 
@@ -310,7 +336,7 @@ impl Profile {
     pub fn merge(&mut self, level: Level) -> Result<()> {
         let capacity = Error::CapacityExceeded {
             what: "sounding levels",
-            capacity: MAX_LEVELS as u16,
+            capacity: N as u16,
         };
         // First level (from the ground) whose pressure is not above the new one's.
         let pos = self

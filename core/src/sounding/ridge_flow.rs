@@ -96,7 +96,12 @@ pub struct RidgeFlow {
 
 /// Height-mean wind between `z1` and `z2` (trapezoid in height over the wind levels,
 /// with the ends interpolated), as (u, v) m/s.
-pub fn mean_wind(profile: &Profile, heights: &Heights, z1: f64, z2: f64) -> Option<(f64, f64)> {
+pub fn mean_wind<const N: usize>(
+    profile: &Profile<N>,
+    heights: &Heights<N>,
+    z1: f64,
+    z2: f64,
+) -> Option<(f64, f64)> {
     let u = |l: &super::Level| l.wind.map(|w| w.components().0);
     let v = |l: &super::Level| l.wind.map(|w| w.components().1);
     let mut prev = (
@@ -134,7 +139,11 @@ pub fn mean_wind(profile: &Profile, heights: &Heights, z1: f64, z2: f64) -> Opti
 }
 
 /// Bulk Froude check of the flow towards a ridge.
-pub fn ridge_flow(profile: &Profile, heights: &Heights, ridge: &RidgeCheck) -> Result<RidgeFlow> {
+pub fn ridge_flow<const N: usize>(
+    profile: &Profile<N>,
+    heights: &Heights<N>,
+    ridge: &RidgeCheck,
+) -> Result<RidgeFlow> {
     finite("upstream ground height", ridge.ground_m)?;
     finite("crest height", ridge.crest_m)?;
     let h = ridge.crest_m - ridge.ground_m;

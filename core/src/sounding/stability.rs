@@ -73,7 +73,7 @@ pub struct LayerRun {
 }
 
 /// The stability of a whole sounding.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, Default)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize, serde::Deserialize))]
 pub struct Stability {
     /// Inversions (temperature rising with height), ground up.
@@ -85,25 +85,25 @@ pub struct Stability {
 }
 
 /// Levels with both a best height and a temperature: (index, z m, T K, θ K).
-fn temperature_levels<'a>(
-    profile: &'a Profile,
-    heights: &'a Heights,
+fn temperature_levels<'a, const N: usize>(
+    profile: &'a Profile<N>,
+    heights: &'a Heights<N>,
 ) -> impl Iterator<Item = (usize, f64, f64, f64)> + 'a {
     profile
         .levels()
         .iter()
-        .zip(heights.best_m.iter())
+        .zip(heights.best_all())
         .enumerate()
         .filter_map(|(i, (l, z))| {
             let t = l.temperature_k?;
-            Some((i, (*z)?, t, potential_temperature(t, l.pressure_pa)))
+            Some((i, z?, t, potential_temperature(t, l.pressure_pa)))
         })
 }
 
 /// Every layer between adjacent temperature levels, ground up.
-pub fn layers<'a>(
-    profile: &'a Profile,
-    heights: &'a Heights,
+pub fn layers<'a, const N: usize>(
+    profile: &'a Profile<N>,
+    heights: &'a Heights<N>,
 ) -> impl Iterator<Item = LayerStability> + 'a {
     let mut below: Option<(usize, f64, f64, f64)> = None;
     temperature_levels(profile, heights).filter_map(move |(i, z, t, th)| {
@@ -123,7 +123,11 @@ pub fn layers<'a>(
 
 /// Find the inversions and stable layers of a sounding, in the layers whose top is at or
 /// below `below_m` (the tropopause, to leave the stratosphere out) or in all of it.
-pub fn stability(profile: &Profile, heights: &Heights, below_m: Option<f64>) -> Stability {
+pub fn stability<const N: usize>(
+    profile: &Profile<N>,
+    heights: &Heights<N>,
+    below_m: Option<f64>,
+) -> Stability {
     let mut out = Stability {
         inversions: Vec::new(),
         stable_layers: Vec::new(),
@@ -185,7 +189,12 @@ pub fn stability(profile: &Profile, heights: &Heights, below_m: Option<f64>) -> 
 /// N² = g0 ln(θ2/θ1)/(z2 − z1), the layer form of (g0/θ) dθ/dz (FIELD-NOTES §6), exact
 /// where θ grows exponentially with height as in an isothermal layer; θ at each end is
 /// interpolated linearly in height.
-pub fn bulk_n(profile: &Profile, heights: &Heights, z1_m: f64, z2_m: f64) -> Result<f64> {
+pub fn bulk_n<const N: usize>(
+    profile: &Profile<N>,
+    heights: &Heights<N>,
+    z1_m: f64,
+    z2_m: f64,
+) -> Result<f64> {
     crate::error::finite("lower height", z1_m)?;
     crate::error::finite("upper height", z2_m)?;
     if z2_m <= z1_m {
@@ -237,7 +246,7 @@ pub struct Tropopause {
 }
 
 /// First and (where there is one) second tropopause.
-#[derive(Debug, Clone, Copy, PartialEq)]
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize, serde::Deserialize))]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct Tropopauses {
@@ -282,7 +291,7 @@ fn tropopause_at(pts: &[(usize, f64, f64, f64)], k: usize) -> bool {
 /// lapse rate to every level within the next 2 km stays at or below 2 K/km. A second
 /// tropopause is sought only above a layer, over the first, whose mean lapse rate over
 /// 1 km exceeds 3 K/km.
-pub fn tropopauses(profile: &Profile, heights: &Heights) -> Tropopauses {
+pub fn tropopauses<const N: usize>(profile: &Profile<N>, heights: &Heights<N>) -> Tropopauses {
     let mut pts: Vec<(usize, f64, f64, f64), { super::MAX_LEVELS }> = Vec::new();
     for p in temperature_levels(profile, heights) {
         // Capacities match, so this cannot overflow; an overflow would only shorten the

@@ -77,9 +77,7 @@ impl LevelThermo {
             .and_then(|td| mixing_ratio_from_dewpoint(td, p));
         LevelThermo {
             theta_k: level.temperature_k.map(|t| potential_temperature(t, p)),
-            virtual_temperature_k: level
-                .temperature_k
-                .map(|t| virtual_temperature(t, r.unwrap_or(0.0))),
+            virtual_temperature_k: virtual_temperature_with(level, r),
             mixing_ratio: r,
             relative_humidity: match (level.temperature_k, level.dewpoint_k) {
                 (Some(t), Some(td)) => Some(relative_humidity(t, td)),
@@ -87,6 +85,22 @@ impl LevelThermo {
             },
         }
     }
+}
+
+/// Virtual temperature of `level`, K, from its temperature and (where it has one) the
+/// mixing ratio of its dew point; dry air where the dew point is missing. The one part
+/// of [`LevelThermo`] the height integration needs, without the others' exponentials.
+pub fn level_virtual_temperature_k(level: &super::Level) -> Option<f64> {
+    let r = level
+        .dewpoint_k
+        .and_then(|td| mixing_ratio_from_dewpoint(td, level.pressure_pa));
+    virtual_temperature_with(level, r)
+}
+
+fn virtual_temperature_with(level: &super::Level, r: Option<f64>) -> Option<f64> {
+    level
+        .temperature_k
+        .map(|t| virtual_temperature(t, r.unwrap_or(0.0)))
 }
 
 #[cfg(test)]
