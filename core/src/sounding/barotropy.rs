@@ -194,9 +194,10 @@ pub fn barotropy<const N: usize>(
     if top_m > wt {
         return Err(outside("layer top", top_m));
     }
+    let has = |l: &super::Level| l.wind.is_some();
     let wind_at = |z: f64| -> Option<Wind> {
-        let u = heights.value_at(profile, z, |l| l.wind.map(|w| w.components().0))?;
-        let v = heights.value_at(profile, z, |l| l.wind.map(|w| w.components().1))?;
+        let u = heights.interpolate(profile, z, has, |l| l.wind.map(|w| w.components().0))?;
+        let v = heights.interpolate(profile, z, has, |l| l.wind.map(|w| w.components().1))?;
         Some(Wind::from_components(u, v))
     };
     let missing = Error::NoData {
@@ -216,16 +217,15 @@ pub fn barotropy<const N: usize>(
     let mut total_turn = 0.0;
     let mut prev = (base_m, bw);
     let mut sub_base = (base_m, bw);
+    // The wind levels inside the layer, as reported (a level's own wind is what
+    // interpolating at its height gives).
+    let levels = profile.levels();
     let inner = heights
-        .samples(profile, has_wind)
-        .map(|(z, _)| z)
-        .filter(|&z| z > base_m && z < top_m);
-    for z in inner.chain(core::iter::once(top_m)) {
-        let w = if z == top_m {
-            tw
-        } else {
-            wind_at(z).ok_or(missing)?
-        };
+        .indexed(profile, has)
+        .filter(|&(_, z)| z > base_m && z < top_m)
+        .map(|(i, z)| (z, levels[i].wind));
+    for (z, w) in inner.chain(core::iter::once((top_m, Some(tw)))) {
+        let w = w.ok_or(missing)?;
         if w.speed_ms > 0.0 && prev.1.speed_ms > 0.0 {
             total_turn += turn(&prev.1, &w);
         }

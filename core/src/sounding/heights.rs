@@ -104,7 +104,7 @@ impl<const N: usize> Heights<N> {
     pub fn samples<'a>(
         &'a self,
         profile: &'a Profile<N>,
-        get: impl Fn(&super::Level) -> Option<f64> + 'a,
+        get: impl Fn(&Level) -> Option<f64> + 'a,
     ) -> impl Iterator<Item = (f64, f64)> + 'a {
         profile
             .levels()
@@ -117,12 +117,26 @@ impl<const N: usize> Heights<N> {
     pub fn span(
         &self,
         profile: &Profile<N>,
-        get: impl Fn(&super::Level) -> Option<f64>,
+        get: impl Fn(&Level) -> Option<f64>,
     ) -> Option<(f64, f64)> {
         let mut it = self.samples(profile, get);
         let first = it.next()?.0;
         let last = it.last().map_or(first, |s| s.0);
         Some((first, last))
+    }
+
+    /// The levels that have a best height and pass `has`, as (index, height m), ground up.
+    pub fn indexed<'a>(
+        &'a self,
+        profile: &'a Profile<N>,
+        has: impl Fn(&Level) -> bool + 'a,
+    ) -> impl Iterator<Item = (usize, f64)> + 'a {
+        profile
+            .levels()
+            .iter()
+            .zip(self.best_all())
+            .enumerate()
+            .filter_map(move |(i, (l, z))| z.filter(|_| has(l)).map(|z| (i, z)))
     }
 
     /// The value of `get` at height `z_m`, linear in height between the two levels
@@ -131,18 +145,34 @@ impl<const N: usize> Heights<N> {
         &self,
         profile: &Profile<N>,
         z_m: f64,
-        get: impl Fn(&super::Level) -> Option<f64>,
+        get: impl Fn(&Level) -> Option<f64>,
     ) -> Option<f64> {
-        let mut below: Option<(f64, f64)> = None;
-        for (z, v) in self.samples(profile, get) {
+        self.interpolate(profile, z_m, |l| get(l).is_some(), &get)
+    }
+
+    /// As [`Heights::value_at`] over the levels that pass `has` (which must be exactly
+    /// those where `get` has a value), calling `get` on the one or two levels used only:
+    /// on the handheld `get` may be a software sine or power, and `value_at` calls it on
+    /// every level below `z_m`.
+    pub fn interpolate(
+        &self,
+        profile: &Profile<N>,
+        z_m: f64,
+        has: impl Fn(&Level) -> bool,
+        get: impl Fn(&Level) -> Option<f64>,
+    ) -> Option<f64> {
+        let levels = profile.levels();
+        let mut below: Option<(usize, f64)> = None;
+        for (i, z) in self.indexed(profile, has) {
             if z == z_m {
-                return Some(v);
+                return get(&levels[i]);
             }
             if z > z_m {
-                let (zb, vb) = below?;
+                let (ib, zb) = below?;
+                let (vb, v) = (get(&levels[ib])?, get(&levels[i])?);
                 return Some(vb + (v - vb) * (z_m - zb) / (z - zb));
             }
-            below = Some((z, v));
+            below = Some((i, z));
         }
         None
     }
@@ -348,6 +378,36 @@ mod tests {
         let z0 = h.computed_m(0).unwrap();
         let expected = 3000.0 - R_DRY / G0 * 250.0 * libm::log(1000.0 / 700.0);
         assert_relative_eq!(z0, expected, epsilon = 1e-6);
+    }
+
+    #[test]
+    fn interpolate_calls_get_on_the_bracketing_levels_only_and_agrees_with_value_at() {
+        use core::cell::Cell;
+        let mut p = isothermal(260.0);
+        let mut q = Profile::new(StationInfo::default());
+        for (i, l) in p.levels().iter().enumerate() {
+            let mut l = *l;
+            if i == 1 {
+                l.temperature_k = None;
+            }
+            q.push(l).unwrap();
+        }
+        p = q;
+        let h = heights(&p, Some(0.0), 20.0).unwrap();
+        let calls = Cell::new(0);
+        let get = |l: &Level| {
+            calls.set(calls.get() + 1);
+            l.temperature_k.map(|t| t + l.pressure_pa / 1000.0)
+        };
+        let has = |l: &Level| l.temperature_k.is_some();
+        for z in [0.0, 700.0, 2500.0, 4000.0, 5000.0, 9000.0, -1.0] {
+            calls.set(0);
+            let a = h.interpolate(&p, z, has, get);
+            assert!(calls.get() <= 2, "{} calls at {z}", calls.get());
+            assert_eq!(a, h.value_at(&p, z, get), "at {z}");
+        }
+        assert!(h.interpolate(&p, 2500.0, has, get).is_some());
+        assert_eq!(h.interpolate(&p, 9000.0, has, get), None);
     }
 
     #[test]

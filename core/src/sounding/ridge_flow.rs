@@ -102,33 +102,25 @@ pub fn mean_wind<const N: usize>(
     z1: f64,
     z2: f64,
 ) -> Option<(f64, f64)> {
-    let u = |l: &super::Level| l.wind.map(|w| w.components().0);
-    let v = |l: &super::Level| l.wind.map(|w| w.components().1);
-    let mut prev = (
-        z1,
-        heights.value_at(profile, z1, u)?,
-        heights.value_at(profile, z1, v)?,
-    );
+    let has = |l: &super::Level| l.wind.is_some();
+    let at = |z: f64| -> Option<(f64, f64, f64)> {
+        let u = heights.interpolate(profile, z, has, |l| l.wind.map(|w| w.components().0))?;
+        let v = heights.interpolate(profile, z, has, |l| l.wind.map(|w| w.components().1))?;
+        Some((z, u, v))
+    };
+    let mut prev = at(z1)?;
+    let end = at(z2)?;
     let (mut su, mut sv) = (0.0, 0.0);
-    let end = (
-        z2,
-        heights.value_at(profile, z2, u)?,
-        heights.value_at(profile, z2, v)?,
-    );
+    // The wind levels inside, each turned into components once.
+    let levels = profile.levels();
     let inner = heights
-        .samples(profile, |l| l.wind.map(|_| 0.0))
-        .map(|(z, _)| z)
-        .filter(|&z| z > z1 && z < z2);
-    for z in inner.chain(core::iter::once(z2)) {
-        let cur = if z == z2 {
-            end
-        } else {
-            (
-                z,
-                heights.value_at(profile, z, u)?,
-                heights.value_at(profile, z, v)?,
-            )
-        };
+        .indexed(profile, has)
+        .filter(|&(_, z)| z > z1 && z < z2)
+        .filter_map(|(i, z)| {
+            let (u, v) = levels[i].wind?.components();
+            Some((z, u, v))
+        });
+    for cur in inner.chain(core::iter::once(end)) {
         let dz = cur.0 - prev.0;
         su += 0.5 * (cur.1 + prev.1) * dz;
         sv += 0.5 * (cur.2 + prev.2) * dz;

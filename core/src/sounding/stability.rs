@@ -84,20 +84,27 @@ pub struct Stability {
     pub not_listed: u16,
 }
 
-/// Levels with both a best height and a temperature: (index, z m, T K, θ K).
-fn temperature_levels<'a, const N: usize>(
+/// Levels with both a best height and a temperature: (index, z m, T K).
+fn temperature_heights<'a, const N: usize>(
     profile: &'a Profile<N>,
     heights: &'a Heights<N>,
-) -> impl Iterator<Item = (usize, f64, f64, f64)> + 'a {
+) -> impl Iterator<Item = (usize, f64, f64)> + 'a {
     profile
         .levels()
         .iter()
         .zip(heights.best_all())
         .enumerate()
-        .filter_map(|(i, (l, z))| {
-            let t = l.temperature_k?;
-            Some((i, z?, t, potential_temperature(t, l.pressure_pa)))
-        })
+        .filter_map(|(i, (l, z))| Some((i, z?, l.temperature_k?)))
+}
+
+/// Levels with both a best height and a temperature: (index, z m, T K, θ K).
+fn temperature_levels<'a, const N: usize>(
+    profile: &'a Profile<N>,
+    heights: &'a Heights<N>,
+) -> impl Iterator<Item = (usize, f64, f64, f64)> + 'a {
+    let levels = profile.levels();
+    temperature_heights(profile, heights)
+        .map(move |(i, z, t)| (i, z, t, potential_temperature(t, levels[i].pressure_pa)))
 }
 
 /// Every layer between adjacent temperature levels, ground up.
@@ -207,9 +214,12 @@ pub fn bulk_n<const N: usize>(
         l.temperature_k
             .map(|t| potential_temperature(t, l.pressure_pa))
     };
-    let (bottom, top) = heights.span(profile, theta).ok_or(Error::NoData {
-        what: "temperatures with heights",
-    })?;
+    let has = |l: &super::Level| l.temperature_k.is_some();
+    let (bottom, top) = heights
+        .span(profile, |l| l.temperature_k)
+        .ok_or(Error::NoData {
+            what: "temperatures with heights",
+        })?;
     let outside = |what, z| Error::OutsideProfile {
         what,
         height_m: z,
@@ -217,10 +227,10 @@ pub fn bulk_n<const N: usize>(
         top_m: top,
     };
     let th1 = heights
-        .value_at(profile, z1_m, theta)
+        .interpolate(profile, z1_m, has, theta)
         .ok_or(outside("lower height", z1_m))?;
     let th2 = heights
-        .value_at(profile, z2_m, theta)
+        .interpolate(profile, z2_m, has, theta)
         .ok_or(outside("upper height", z2_m))?;
     let n2 = G0 * libm::log(th2 / th1) / (z2_m - z1_m);
     if n2 > 0.0 {
@@ -259,9 +269,9 @@ pub struct Tropopauses {
 /// Whether the WMO (1957) tropopause condition holds at temperature level `k` of `pts`:
 /// the lapse rate to the next level is ≤ 2 K/km and the mean lapse rate from `k` to
 /// every level within 2 km above (and to the point 2 km above, interpolated) is ≤ 2 K/km.
-fn tropopause_at(pts: &[(usize, f64, f64, f64)], k: usize) -> bool {
-    let (_, z0, t0, _) = pts[k];
-    let Some(&(_, z1, t1, _)) = pts.get(k + 1) else {
+fn tropopause_at(pts: &[(usize, f64, f64)], k: usize) -> bool {
+    let (_, z0, t0) = pts[k];
+    let Some(&(_, z1, t1)) = pts.get(k + 1) else {
         return false;
     };
     let lapse = |z: f64, t: f64| (t0 - t) / (z - z0) * 1000.0;
@@ -271,7 +281,7 @@ fn tropopause_at(pts: &[(usize, f64, f64, f64)], k: usize) -> bool {
     let top = z0 + TROPOPAUSE_DEPTH_M;
     let mut prev = pts[k];
     for &p in &pts[k + 1..] {
-        let (_, z, t, _) = p;
+        let (_, z, t) = p;
         if z >= top {
             // The point exactly 2 km above, interpolated.
             let tt = prev.2 + (t - prev.2) * (top - prev.1) / (z - prev.1);
@@ -292,15 +302,15 @@ fn tropopause_at(pts: &[(usize, f64, f64, f64)], k: usize) -> bool {
 /// tropopause is sought only above a layer, over the first, whose mean lapse rate over
 /// 1 km exceeds 3 K/km.
 pub fn tropopauses<const N: usize>(profile: &Profile<N>, heights: &Heights<N>) -> Tropopauses {
-    let mut pts: Vec<(usize, f64, f64, f64), { super::MAX_LEVELS }> = Vec::new();
-    for p in temperature_levels(profile, heights) {
+    let mut pts: Vec<(usize, f64, f64), N> = Vec::new();
+    for p in temperature_heights(profile, heights) {
         // Capacities match, so this cannot overflow; an overflow would only shorten the
         // search.
         let _ = pts.push(p);
     }
     let levels = profile.levels();
     let found = |k: usize| {
-        let (i, z, t, _) = pts[k];
+        let (i, z, t) = pts[k];
         Tropopause {
             index: i as u16,
             height_m: z,
@@ -321,7 +331,7 @@ pub fn tropopauses<const N: usize>(profile: &Profile<N>, heights: &Heights<N>) -
     // 1 km above, and to the point 1 km above, exceeds 3 K/km. The second tropopause may
     // lie within or above that layer (WMO 1957).
     let steep_from = |k: usize| {
-        let (_, z0, t0, _) = pts[k];
+        let (_, z0, t0) = pts[k];
         let lapse = |z: f64, t: f64| (t0 - t) / (z - z0) * 1000.0;
         let mut prev = pts[k];
         for &p in &pts[k + 1..] {
