@@ -179,9 +179,10 @@ pub const SONDE_WMO_NUMBER: &str = "08888";
 pub const SONDE_400_HPA_ERROR_M: f64 = 40.0;
 
 /// The demo radiosonde ascent from Tessel Col: the analytic profile above, integrated
-/// hydrostatically (virtual temperature, 5 m steps) and sampled at the surface, the
+/// hydrostatically (virtual temperature, 100 m steps) and sampled at the surface, the
 /// significant levels and the standard isobaric surfaces to 100 hPa, rounded as a
-/// radiosonde reports (0.1 hPa, whole metres, 0.1 °C, whole degrees and knots).
+/// radiosonde reports (0.1 hPa, whole metres, 0.1 °C, whole degrees and knots). Read from
+/// [`SONDE_REPORT`], which a unit test keeps equal, to the bit, to the integration.
 pub fn sounding() -> Result<crate::sounding::Profile> {
     let mut prof = crate::sounding::Profile::default();
     sounding_into(&mut prof)?;
@@ -191,7 +192,179 @@ pub fn sounding() -> Result<crate::sounding::Profile> {
 /// [`sounding`] written into `prof` (emptied first) of any capacity that holds its 15
 /// levels: the handheld builds it in place rather than move a profile on its stack.
 pub fn sounding_into<const N: usize>(prof: &mut crate::sounding::Profile<N>) -> Result<()> {
+    use crate::sounding::thermo::ZERO_CELSIUS_K;
+    use crate::sounding::{Level, Wind};
+    prof.reset(sonde_station());
+    for &(p_hpa, z, t_c, td_c, dir, kt, kind) in &SONDE_REPORT {
+        prof.push(Level {
+            pressure_pa: p_hpa * 100.0,
+            height_m: Some(z),
+            temperature_k: Some(t_c + ZERO_CELSIUS_K),
+            dewpoint_k: Some(td_c + ZERO_CELSIUS_K),
+            wind: Some(Wind {
+                dir_from_deg: dir,
+                speed_ms: kt * crate::sounding::csv::MS_PER_KNOT,
+            }),
+            kind,
+        })?;
+    }
+    Ok(())
+}
+
+/// The demo ascent as reported, ground up: pressure hPa, height m, temperature °C, dew
+/// point °C, wind direction ° and speed kt, and what the level is. Written out from the
+/// integration of the analytic profile (`sounding_with_step`; the 400 hPa height carries
+/// [`SONDE_400_HPA_ERROR_M`]), which the unit test `the_report_is_the_integration` checks
+/// it against: read from a table, the ascent costs the handheld a few thousand
+/// instructions instead of 3.2 million (docs/performance.md).
+pub const SONDE_REPORT: [(f64, f64, f64, f64, f64, f64, crate::sounding::LevelKind); 15] = {
+    use crate::sounding::LevelKind;
+    [
+        (799.0, 1850.0, 9.0, 6.0, 262.0, 33.0, LevelKind::SURFACE),
+        (
+            747.4,
+            2400.0,
+            5.4,
+            3.4,
+            262.0,
+            34.0,
+            LevelKind::SIGNIFICANT_TEMPERATURE,
+        ),
+        (700.0, 2933.0, 2.0, 0.8, 263.0, 34.0, LevelKind::STANDARD),
+        (
+            694.2,
+            3000.0,
+            1.5,
+            0.5,
+            263.0,
+            34.0,
+            LevelKind::SIGNIFICANT_TEMPERATURE,
+        ),
+        (
+            652.6,
+            3500.0,
+            3.5,
+            -11.5,
+            263.0,
+            34.0,
+            LevelKind::SIGNIFICANT_TEMPERATURE,
+        ),
+        (
+            500.0,
+            5605.0,
+            -10.4,
+            -23.3,
+            265.0,
+            36.0,
+            LevelKind::STANDARD,
+        ),
+        (
+            415.7,
+            7000.0,
+            -19.6,
+            -31.2,
+            267.0,
+            38.0,
+            LevelKind::SIGNIFICANT_TEMPERATURE,
+        ),
+        (
+            400.0,
+            7325.0,
+            -21.5,
+            -32.8,
+            267.0,
+            38.0,
+            LevelKind::STANDARD,
+        ),
+        (
+            300.0,
+            9348.0,
+            -35.1,
+            -44.5,
+            269.0,
+            40.0,
+            LevelKind::STANDARD,
+        ),
+        (
+            250.0,
+            10596.0,
+            -43.3,
+            -51.5,
+            270.0,
+            41.0,
+            LevelKind::STANDARD,
+        ),
+        (
+            242.5,
+            10800.0,
+            -44.7,
+            -52.7,
+            270.0,
+            41.0,
+            LevelKind::TROPOPAUSE,
+        ),
+        (
+            200.0,
+            12091.0,
+            -44.0,
+            -64.0,
+            270.0,
+            38.0,
+            LevelKind::STANDARD,
+        ),
+        (
+            174.7,
+            13000.0,
+            -43.6,
+            -63.6,
+            270.0,
+            35.0,
+            LevelKind::SIGNIFICANT_TEMPERATURE,
+        ),
+        (
+            150.0,
+            14025.0,
+            -43.0,
+            -63.0,
+            270.0,
+            33.0,
+            LevelKind::STANDARD,
+        ),
+        (
+            100.0,
+            16764.0,
+            -41.7,
+            -61.7,
+            270.0,
+            31.0,
+            LevelKind::STANDARD,
+        ),
+    ]
+};
+
+/// The demo ascent worked out from the analytic profile, as [`SONDE_REPORT`] was written
+/// from it: the integration at the 100 m step, sampled and rounded as reported. The same
+/// levels as [`sounding`], at about a thousand times the cost on the handheld.
+pub fn sounding_integrated<const N: usize>(prof: &mut crate::sounding::Profile<N>) -> Result<()> {
     sounding_with_step(SONDE_STEP_M, prof)
+}
+
+/// Where and when the demo ascent was made.
+fn sonde_station() -> crate::sounding::StationInfo {
+    let mut station = crate::sounding::StationInfo {
+        lat_deg: Some(SITE.lat_deg),
+        lon_deg: Some(SITE.lon_deg),
+        elevation_m: Some(SITE_ELEVATION_M),
+        time: Some(crate::sounding::ObsTime {
+            day: 14,
+            hour: 12,
+            minute: 0,
+        }),
+        ..Default::default()
+    };
+    // "TCOL" fits the 8-character identifier.
+    let _ = station.id.push_str("TCOL");
+    station
 }
 
 /// Height step of the demo ascent's hydrostatic integration, m. The midpoint rule's error
@@ -205,27 +378,14 @@ fn sounding_with_step<const N: usize>(
     prof: &mut crate::sounding::Profile<N>,
 ) -> Result<()> {
     use crate::sounding::thermo::{mixing_ratio_from_dewpoint, virtual_temperature};
-    use crate::sounding::{Level, LevelKind, StationInfo};
+    use crate::sounding::{Level, LevelKind};
     let tv = |z: f64, p: f64| {
         let t = sonde_temperature_k(z);
         let r = mixing_ratio_from_dewpoint(t - sonde_dewpoint_depression_k(z), p).unwrap_or(0.0);
         virtual_temperature(t, r)
     };
     let g_over_r = crate::constants::G0 / crate::constants::R_DRY;
-    let mut station = StationInfo {
-        lat_deg: Some(SITE.lat_deg),
-        lon_deg: Some(SITE.lon_deg),
-        elevation_m: Some(SITE_ELEVATION_M),
-        time: Some(crate::sounding::ObsTime {
-            day: 14,
-            hour: 12,
-            minute: 0,
-        }),
-        ..Default::default()
-    };
-    // "TCOL" fits the 8-character identifier.
-    let _ = station.id.push_str("TCOL");
-    prof.reset(station);
+    prof.reset(sonde_station());
     let standard = [
         70_000.0, 50_000.0, 40_000.0, 30_000.0, 25_000.0, 20_000.0, 15_000.0, 10_000.0,
     ];
@@ -333,10 +493,22 @@ mod sonde_tests {
     fn the_integration_step_is_fine_enough() {
         // Rounded as a radiosonde reports, the ascent is the same with the step used and
         // with one twenty times finer; the step does not show in the demo.
-        let used = sounding().unwrap();
+        let mut used = crate::sounding::Profile::default();
+        sounding_with_step(SONDE_STEP_M, &mut used).unwrap();
         let mut fine = crate::sounding::Profile::default();
         sounding_with_step(SONDE_STEP_M / 20.0, &mut fine).unwrap();
         assert_eq!(used.levels(), fine.levels());
+    }
+
+    #[test]
+    fn the_report_is_the_integration() {
+        // The table the device reads is the analytic ascent, to the bit: station, every
+        // value and every level mark.
+        let mut integrated = crate::sounding::Profile::default();
+        sounding_integrated(&mut integrated).unwrap();
+        let table = sounding().unwrap();
+        assert_eq!(table, integrated);
+        assert_eq!(table.len(), SONDE_REPORT.len());
     }
 
     #[test]

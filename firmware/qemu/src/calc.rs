@@ -508,12 +508,19 @@ pub fn breakdown(r: &mut Report) {
             part(r, name, &m);
         }
     }
-    let (m, prof) = measure(demo::sounding);
+    let (m, _) = measure(|| {
+        let mut p = leeward_firmware::sounding::DeviceProfile::empty(Default::default());
+        let done = demo::sounding_integrated(&mut p);
+        black_box(&p);
+        done
+    });
     part(
         r,
-        "demo ascent built (demo::sounding, 100 m hydrostatic steps)",
+        "demo ascent integrated (analytic profile, 100 m hydrostatic steps)",
         &m,
     );
+    let (m, prof) = measure(demo::sounding);
+    part(r, "demo ascent read from its table (demo::sounding)", &m);
     if let Ok(prof) = prof {
         let (m, _) = measure(|| heights(black_box(&prof), None, 20.0));
         part(r, "demo ascent: hypsometric heights only", &m);
