@@ -13,15 +13,22 @@
 //!   azimuth) with a bell ("witch of Agnesi") or a tabulated cross profile.
 //!
 //! The track is integrated with the classical fourth-order Runge–Kutta scheme in 3-D unit
-//! vectors (position p and heading t), which needs no trigonometry per stage and has no
-//! trouble at any longitude.
+//! vectors (position p and heading t), which needs no trigonometry per stage (one arcsine
+//! for the distance from the axis) and has no trouble at any longitude.
+//!
+//! Two precisions, one method: [`run`] integrates in f64 (the reference: the command
+//! line, the reference tests), [`run_f32`] in f32, which the device's FPU does in
+//! hardware (the same inputs, checks and results; set-up and results in f64). Their
+//! agreement is measured in docs/performance.md ("f32 against f64") and held by the
+//! differential tests in tests/tests/crossing_f32.rs.
 
 use crate::constants::{EARTH_RADIUS, OMEGA};
 use crate::error::{in_range, Error, Result};
 use crate::geo::{wrap_deg, LatLon, Vec3};
+use crate::real::Real;
 use crate::rotation::{beta, coriolis, Sense, GEOSTROPHIC_MIN_LAT_DEG};
 use core::f64::consts::PI;
-use libm::{asin, atan2, cos, sin, sqrt, tan};
+use libm::{asin, cos, sin, sqrt, tan};
 
 /// Most points of a tabulated ridge cross-profile.
 pub const MAX_PROFILE_POINTS: usize = 32;
@@ -40,6 +47,13 @@ pub const FROUDE_BLOCKED: f64 = 1.0;
 /// Hysteresis on ζ when finding extremes, s⁻¹: far below any real signal, far above
 /// rounding noise, so a flat track shows no spurious troughs.
 const EXTREME_HYSTERESIS: f64 = 1e-11;
+/// The same for the f32 track ([`run_f32`]), s⁻¹. Its rounding moves the column by
+/// decimetres a step, and the track's ζ wanders with it (β times the wander); the
+/// largest swing of ζ measured on tracks that should keep ζ constant (no ridge, every
+/// latitude and wind of tests/tests/crossing_f32.rs) sets it, with a margin
+/// (docs/performance.md, "f32 against f64"). Still a thousand times below the ζ of the
+/// lowest ridge worth computing.
+pub const EXTREME_HYSTERESIS_F32: f64 = 1e-9;
 
 /// One point of a tabulated cross-profile.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -414,8 +428,31 @@ pub struct Crossing {
     pub step_m: f64,
 }
 
-/// Run a ridge crossing, handing every point to `sink`.
+/// Run a ridge crossing, handing every point to `sink`: the track integrated in f64.
 pub fn run(input: &CrossingInput, sink: &mut impl TrackSink) -> Result<Crossing> {
+    run_in::<f64>(input, sink, EXTREME_HYSTERESIS)
+}
+
+/// [`run`] with the track integrated in f32 (inputs checked, set up and results given in
+/// f64), for the device, whose FPU has single precision only: 18 times fewer
+/// instructions there (3000 km: 1.9 M against 34.4 M, docs/performance.md). Its figures agree with [`run`]'s to well within what the
+/// inputs support (docs/performance.md, "f32 against f64", and the differential tests
+/// in tests/tests/crossing_f32.rs); its PV drift is of f32's order (1e-7), not f64's.
+///
+/// f32's rounding needs a larger hysteresis to tell a maximum of ζ from noise
+/// ([`EXTREME_HYSTERESIS_F32`]), so a trough is confirmed a few steps later; a track that
+/// stops at its second trough still ends where f64's finder would have stopped it, and
+/// the sink may have been given those few points past the end.
+pub fn run_f32(input: &CrossingInput, sink: &mut impl TrackSink) -> Result<Crossing> {
+    run_in::<f32>(input, sink, EXTREME_HYSTERESIS_F32)
+}
+
+/// The crossing with the track integrated in `T`, extremes found with `hysteresis`.
+fn run_in<T: Real>(
+    input: &CrossingInput,
+    sink: &mut impl TrackSink,
+    hysteresis: f64,
+) -> Result<Crossing> {
     let v = in_range("wind speed", input.wind_speed_ms, 0.5, 150.0)?;
     let dir = in_range("wind direction", input.wind_dir_from_deg, 0.0, 360.0)?;
     let lid = in_range("lid height", input.lid_m, 500.0, 30_000.0)?;
@@ -483,11 +520,11 @@ pub fn run(input: &CrossingInput, sink: &mut impl TrackSink) -> Result<Crossing>
         });
     }
     let field = Field {
-        profile,
-        lid,
-        pv,
-        v,
-        n,
+        terrain: Terrain::of(profile),
+        lid: T::of(lid),
+        pv: T::of(pv),
+        v: T::of(v),
+        n: V::of(n),
     };
 
     // A purely meridional wind has no westerly part; rounding of sin(180°) must not
@@ -500,26 +537,26 @@ pub fn run(input: &CrossingInput, sink: &mut impl TrackSink) -> Result<Crossing>
     };
 
     let hemi = f0.signum();
-    let mut state = (p0, t0);
+    let mut state = (V::of(p0), V::of(t0));
     let mut s = 0.0;
     let mut steps = 0u32;
-    let start = field.point(s, state.0, state.1, side);
+    let (start, mut drift) = field.point(s, state.0, state.1, side);
     sink.point(&start);
     let mut last = start;
-    let mut drift = field.drift(&start);
     let mut min_depth = start.depth_m;
     let mut most_anti = start.zeta;
-    let mut finder = ExtremeFinder::new(start.zeta * hemi, start);
+    let mut finder = ExtremeFinder::new(start.zeta * hemi, start, hysteresis);
     let mut troughs: [Option<TrackPoint>; 2] = [None, None];
+    let h_full = T::of(step);
     let ended = loop {
         if s >= max_len - 1e-6 {
             break TrackEnd::MaxLength;
         }
         let h = step.min(max_len - s);
-        state = field.rk4(state, h);
+        state = field.rk4(state, if h == step { h_full } else { T::of(h) });
         s += h;
         steps += 1;
-        let pt = field.point(s, state.0, state.1, side);
+        let (pt, pt_drift) = field.point(s, state.0, state.1, side);
         if pt.pos.lat_deg.abs() >= 89.5 {
             break TrackEnd::ReachedPole;
         }
@@ -528,18 +565,22 @@ pub fn run(input: &CrossingInput, sink: &mut impl TrackSink) -> Result<Crossing>
         }
         sink.point(&pt);
         last = pt;
-        drift = drift.max(field.drift(&pt));
+        drift = drift.max(pt_drift);
         min_depth = min_depth.min(pt.depth_m);
         if pt.zeta * hemi < most_anti * hemi {
             most_anti = pt.zeta;
         }
-        if let Some(max_pt) = finder.push(pt.zeta * hemi, pt) {
+        if let Some((max_pt, end_pt, end_step)) = finder.push(pt.zeta * hemi, pt, steps) {
             if max_pt.axis_distance_m > 0.0 {
                 if troughs[0].is_none() {
                     troughs[0] = Some(max_pt);
                 } else if troughs[1].is_none() {
                     troughs[1] = Some(max_pt);
                     if input.stop_after_second_trough && !easterly {
+                        // Where f64's hysteresis would have stopped (this point, in
+                        // f64): the track's length does not depend on the precision.
+                        last = end_pt;
+                        steps = end_step;
                         break TrackEnd::SecondTrough;
                     }
                 }
@@ -674,77 +715,235 @@ fn rhumb_destination(a: LatLon, bearing_deg: f64, dist_m: f64) -> Option<LatLon>
     })
 }
 
-/// The fields the column feels.
-struct Field<'a> {
-    profile: &'a Profile,
-    lid: f64,
-    pv: f64,
-    v: f64,
-    n: Vec3,
+/// A 3-vector in the track's precision.
+#[derive(Clone, Copy)]
+struct V<T> {
+    x: T,
+    y: T,
+    z: T,
 }
 
-impl Field<'_> {
+impl<T: Real> V<T> {
+    fn of(v: Vec3) -> Self {
+        V {
+            x: T::of(v.x),
+            y: T::of(v.y),
+            z: T::of(v.z),
+        }
+    }
+    fn plus(self, o: Self) -> Self {
+        V {
+            x: self.x + o.x,
+            y: self.y + o.y,
+            z: self.z + o.z,
+        }
+    }
+    fn minus(self, o: Self) -> Self {
+        V {
+            x: self.x - o.x,
+            y: self.y - o.y,
+            z: self.z - o.z,
+        }
+    }
+    fn scale(self, k: T) -> Self {
+        V {
+            x: self.x * k,
+            y: self.y * k,
+            z: self.z * k,
+        }
+    }
+    fn dot(self, o: Self) -> T {
+        self.x * o.x + self.y * o.y + self.z * o.z
+    }
+    fn cross(self, o: Self) -> Self {
+        V {
+            x: self.y * o.z - self.z * o.y,
+            y: self.z * o.x - self.x * o.z,
+            z: self.x * o.y - self.y * o.x,
+        }
+    }
+    /// Unit vector in the same direction (the zero vector stays zero).
+    fn unit(self) -> Self {
+        let n = self.dot(self).sqrt();
+        if n > T::of(0.0) {
+            self.scale(T::of(1.0) / n)
+        } else {
+            self
+        }
+    }
+}
+
+/// The cross-profile in the track's precision (the table copied once, not converted at
+/// every stage).
+enum Terrain<T> {
+    Bell {
+        base: T,
+        rise: T,
+        half_width: T,
+    },
+    Flat(T),
+    Table {
+        pts: [(T, T); MAX_PROFILE_POINTS],
+        len: usize,
+    },
+}
+
+impl<T: Real> Terrain<T> {
+    fn of(p: &Profile) -> Self {
+        match p {
+            Profile::Bell {
+                base_m,
+                crest_m,
+                half_width_m,
+            } => Terrain::Bell {
+                base: T::of(*base_m),
+                rise: T::of(crest_m - base_m),
+                half_width: T::of(*half_width_m),
+            },
+            Profile::Flat { height_m } => Terrain::Flat(T::of(*height_m)),
+            Profile::Table(v) => {
+                let mut pts = [(T::of(0.0), T::of(0.0)); MAX_PROFILE_POINTS];
+                for (dst, src) in pts.iter_mut().zip(v.iter()) {
+                    *dst = (T::of(src.distance_m), T::of(src.height_m));
+                }
+                Terrain::Table { pts, len: v.len() }
+            }
+        }
+    }
+
+    /// Terrain height at signed distance `d` from the axis, as [`Profile::height`].
+    fn height(&self, d: T) -> T {
+        match self {
+            Terrain::Bell {
+                base,
+                rise,
+                half_width,
+            } => {
+                let r = d / *half_width;
+                *base + *rise / (T::of(1.0) + r * r)
+            }
+            Terrain::Flat(h) => *h,
+            Terrain::Table { pts, len } => {
+                let pts = &pts[..*len];
+                let (Some(first), Some(last)) = (pts.first(), pts.last()) else {
+                    return T::of(0.0);
+                };
+                if d <= first.0 {
+                    return first.1;
+                }
+                if d >= last.0 {
+                    return last.1;
+                }
+                for w in pts.windows(2) {
+                    let (a, b) = (w[0], w[1]);
+                    if d <= b.0 {
+                        let t = (d - a.0) / (b.0 - a.0);
+                        return a.1 + t * (b.1 - a.1);
+                    }
+                }
+                last.1
+            }
+        }
+    }
+}
+
+/// The fields the column feels, in the track's precision `T`.
+struct Field<T> {
+    terrain: Terrain<T>,
+    lid: T,
+    pv: T,
+    v: T,
+    n: V<T>,
+}
+
+impl<T: Real> Field<T> {
+    /// Signed great-circle distance of unit position `p` from the axis, m.
+    fn axis_distance(&self, p: V<T>) -> T {
+        let x = p.dot(self.n).max(T::of(-1.0)).min(T::of(1.0));
+        T::of(EARTH_RADIUS) * x.asin()
+    }
+
     /// ζ at unit position p: qH − f.
-    fn zeta(&self, p: Vec3) -> f64 {
-        let h = self.lid - self.profile.height(axis_distance(p, self.n));
-        self.pv * h - 2.0 * OMEGA * p.z
+    fn zeta(&self, p: V<T>) -> T {
+        let h = self.lid - self.terrain.height(self.axis_distance(p));
+        self.pv * h - T::of(2.0 * OMEGA) * p.z
     }
 
     /// d(p, t)/ds on the sphere: dp/ds = t/a, dt/ds = −p/a + K (p × t), K = ζ/V.
-    fn deriv(&self, p: Vec3, t: Vec3) -> (Vec3, Vec3) {
+    fn deriv(&self, p: V<T>, t: V<T>) -> (V<T>, V<T>) {
         let k = self.zeta(p) / self.v;
-        (
-            t.scale(1.0 / EARTH_RADIUS),
-            p.scale(-1.0 / EARTH_RADIUS).plus(p.cross(t).scale(k)),
-        )
+        let inv_a = T::of(1.0 / EARTH_RADIUS);
+        (t.scale(inv_a), p.scale(-inv_a).plus(p.cross(t).scale(k)))
     }
 
-    fn rk4(&self, (p, t): (Vec3, Vec3), h: f64) -> (Vec3, Vec3) {
+    fn rk4(&self, (p, t): (V<T>, V<T>), h: T) -> (V<T>, V<T>) {
+        let half = h * T::of(0.5);
+        let two = T::of(2.0);
         let (k1p, k1t) = self.deriv(p, t);
-        let (k2p, k2t) = self.deriv(p.plus(k1p.scale(h / 2.0)), t.plus(k1t.scale(h / 2.0)));
-        let (k3p, k3t) = self.deriv(p.plus(k2p.scale(h / 2.0)), t.plus(k2t.scale(h / 2.0)));
+        let (k2p, k2t) = self.deriv(p.plus(k1p.scale(half)), t.plus(k1t.scale(half)));
+        let (k3p, k3t) = self.deriv(p.plus(k2p.scale(half)), t.plus(k2t.scale(half)));
         let (k4p, k4t) = self.deriv(p.plus(k3p.scale(h)), t.plus(k3t.scale(h)));
+        let sixth = h / T::of(6.0);
         let p1 = p
             .plus(
-                k1p.plus(k2p.scale(2.0))
-                    .plus(k3p.scale(2.0))
+                k1p.plus(k2p.scale(two))
+                    .plus(k3p.scale(two))
                     .plus(k4p)
-                    .scale(h / 6.0),
+                    .scale(sixth),
             )
             .unit();
         let t1 = t.plus(
-            k1t.plus(k2t.scale(2.0))
-                .plus(k3t.scale(2.0))
+            k1t.plus(k2t.scale(two))
+                .plus(k3t.scale(two))
                 .plus(k4t)
-                .scale(h / 6.0),
+                .scale(sixth),
         );
         // Keep the heading tangent to the sphere and of unit length.
         let t1 = t1.minus(p1.scale(t1.dot(p1))).unit();
         (p1, t1)
     }
 
-    fn point(&self, s: f64, p: Vec3, t: Vec3, side: f64) -> TrackPoint {
-        let pos = LatLon::from_unit(p);
-        let (e, nn) = pos.east_north();
-        let heading = wrap_deg(atan2(t.dot(e), t.dot(nn)).to_degrees());
-        let d = axis_distance(p, self.n);
-        let terrain = self.profile.height(d);
-        TrackPoint {
+    /// The track point at unit position p with unit heading t (results in f64), and its
+    /// PV drift |(ζ + f)/H / q − 1| with f recomputed from the point's latitude: a check
+    /// that the stored latitude, depth and ζ agree (computed from the values in `T`,
+    /// which are exactly the stored ones).
+    fn point(&self, s: f64, p: V<T>, t: V<T>, side: f64) -> (TrackPoint, f64) {
+        let deg = T::of(180.0 / PI);
+        let rho2 = p.x * p.x + p.y * p.y;
+        let rho = rho2.sqrt();
+        let lat = p.z.atan2(rho) * deg;
+        let lon = p.y.atan2(p.x) * deg;
+        // The heading's east and north components, both times cos φ: east is
+        // (−y, x, 0)/cos φ, north (−z x, −z y, cos² φ)/cos φ (no trigonometry). atan2
+        // gives −180..180°; a negative heading is wrapped (as `wrap_deg` would).
+        let east = t.y * p.x - t.x * p.y;
+        let north = t.z * rho2 - p.z * (t.x * p.x + t.y * p.y);
+        let heading = (east.atan2(north) * deg).to_f64();
+        let heading = if heading < 0.0 {
+            heading + 360.0
+        } else {
+            heading
+        };
+        let d = self.axis_distance(p);
+        let terrain = self.terrain.height(d);
+        let depth = self.lid - terrain;
+        let zeta = self.pv * depth - T::of(2.0 * OMEGA) * p.z;
+        let f_lat = T::of(2.0 * OMEGA) * (lat * T::of(PI / 180.0)).sin_lat();
+        let drift = ((zeta + f_lat) / depth / self.pv - T::of(1.0)).abs();
+        let pt = TrackPoint {
             s_m: s,
-            pos,
+            pos: LatLon {
+                lat_deg: lat.to_f64(),
+                lon_deg: lon.to_f64(),
+            },
             heading_deg: heading,
-            axis_distance_m: d * side,
-            terrain_m: terrain,
-            depth_m: self.lid - terrain,
-            f: 2.0 * OMEGA * p.z,
-            zeta: self.zeta(p),
-        }
-    }
-
-    /// |(ζ + f)/H / q − 1| with f and H recomputed from the stored latitude and distance.
-    fn drift(&self, p: &TrackPoint) -> f64 {
-        let f = coriolis(p.pos.lat_deg);
-        ((p.zeta + f) / p.depth_m / self.pv - 1.0).abs()
+            axis_distance_m: d.to_f64() * side,
+            terrain_m: terrain.to_f64(),
+            depth_m: depth.to_f64(),
+            f: (T::of(2.0 * OMEGA) * p.z).to_f64(),
+            zeta: zeta.to_f64(),
+        };
+        (pt, drift.to_f64())
     }
 }
 
@@ -753,25 +952,34 @@ impl Field<'_> {
 struct ExtremeFinder {
     rising: Option<bool>,
     best: (f64, TrackPoint),
+    hysteresis: f64,
+    /// Since the best maximum so far: the first point, with its step, that lies
+    /// [`EXTREME_HYSTERESIS`] below it, where f64's finder would have confirmed it.
+    fall: Option<(TrackPoint, u32)>,
 }
 
 impl ExtremeFinder {
-    fn new(z: f64, p: TrackPoint) -> Self {
+    fn new(z: f64, p: TrackPoint, hysteresis: f64) -> Self {
         ExtremeFinder {
             rising: None,
             best: (z, p),
+            hysteresis,
+            fall: None,
         }
     }
 
-    /// Feed one value; returns the point of a maximum once the sequence has fallen clearly
-    /// below it.
-    fn push(&mut self, z: f64, p: TrackPoint) -> Option<TrackPoint> {
+    /// Feed one value (of step `step`); returns the point of a maximum once the sequence
+    /// has fallen clearly below it, with the point and step where it first fell
+    /// [`EXTREME_HYSTERESIS`] below it (the same point unless the hysteresis is larger:
+    /// the f32 track then stops where the f64 one would).
+    fn push(&mut self, z: f64, p: TrackPoint, step: u32) -> Option<(TrackPoint, TrackPoint, u32)> {
         match self.rising {
             None => {
-                if z > self.best.0 + EXTREME_HYSTERESIS {
+                if z > self.best.0 + self.hysteresis {
                     self.rising = Some(true);
                     self.best = (z, p);
-                } else if z < self.best.0 - EXTREME_HYSTERESIS {
+                    self.fall = None;
+                } else if z < self.best.0 - self.hysteresis {
                     self.rising = Some(false);
                     self.best = (z, p);
                 }
@@ -780,12 +988,18 @@ impl ExtremeFinder {
             Some(true) => {
                 if z >= self.best.0 {
                     self.best = (z, p);
-                    None
-                } else if z < self.best.0 - EXTREME_HYSTERESIS {
+                    self.fall = None;
+                    return None;
+                }
+                if self.fall.is_none() && z < self.best.0 - EXTREME_HYSTERESIS {
+                    self.fall = Some((p, step));
+                }
+                if z < self.best.0 - self.hysteresis {
                     let found = self.best.1;
+                    let (end, end_step) = self.fall.unwrap_or((p, step));
                     self.rising = Some(false);
                     self.best = (z, p);
-                    Some(found)
+                    Some((found, end, end_step))
                 } else {
                     None
                 }
@@ -793,7 +1007,7 @@ impl ExtremeFinder {
             Some(false) => {
                 if z <= self.best.0 {
                     self.best = (z, p);
-                } else if z > self.best.0 + EXTREME_HYSTERESIS {
+                } else if z > self.best.0 + self.hysteresis {
                     self.rising = Some(true);
                     self.best = (z, p);
                 }

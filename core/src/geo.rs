@@ -7,7 +7,7 @@
 
 use crate::constants::EARTH_RADIUS;
 use crate::error::{in_range, Result};
-use libm::{asin, atan2, cos, sin, sqrt};
+use libm::{asin, atan2, cos, sin, sincos, sqrt};
 
 /// A validated latitude/longitude pair, degrees.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -116,22 +116,43 @@ pub fn wrap_deg(x: f64) -> f64 {
 pub struct TangentPlane {
     /// The reference point (origin of the plane).
     pub origin: LatLon,
+    /// sin and cos of the origin's latitude, kept for [`TangentPlane::to_xy`].
+    sin_cos_lat: (f64, f64),
 }
 
 impl TangentPlane {
-    /// A plane about `origin`.
+    /// The plane about `origin`.
     pub fn new(origin: LatLon) -> Self {
-        TangentPlane { origin }
+        TangentPlane {
+            origin,
+            sin_cos_lat: sincos(origin.lat_deg.to_radians()),
+        }
     }
 
     /// Plane coordinates (x east, y north), m, of `p`.
+    ///
+    /// The great-circle distance c and the initial bearing come from the spherical
+    /// triangle's components: sin c · (sin θ, cos θ) = (cos φ2 sin Δλ, cos φ1 sin φ2 −
+    /// sin φ1 cos φ2 cos Δλ) and cos c = sin φ1 sin φ2 + cos φ1 cos φ2 cos Δλ, so that
+    /// c = atan2(sin c, cos c), accurate at any range (the "Vincenty" form of the
+    /// sphere's distance). Two sine–cosine pairs and one arctangent a station, where the
+    /// haversine distance and the bearing took eleven functions: the saving matters on
+    /// the device's software f64 (docs/performance.md).
     pub fn to_xy(&self, p: LatLon) -> (f64, f64) {
-        let d = distance_m(self.origin, p);
-        if d == 0.0 {
-            return (0.0, 0.0);
+        let (s1, c1) = self.sin_cos_lat;
+        let (s2, c2) = sincos(p.lat_deg.to_radians());
+        let (sdl, cdl) = sincos((p.lon_deg - self.origin.lon_deg).to_radians());
+        let east = c2 * sdl;
+        let north = c1 * s2 - s1 * c2 * cdl;
+        let sin_c = sqrt(east * east + north * north);
+        let cos_c = s1 * s2 + c1 * c2 * cdl;
+        let d = EARTH_RADIUS * atan2(sin_c, cos_c);
+        if sin_c == 0.0 {
+            // The origin itself, or its antipode (no bearing: put it due south, at its
+            // distance, so that a distance check still sees it).
+            return (0.0, if d > 0.0 { -d } else { 0.0 });
         }
-        let b = bearing_deg(self.origin, p).to_radians();
-        (d * sin(b), d * cos(b))
+        (d * east / sin_c, d * north / sin_c)
     }
 
     /// The position at plane coordinates (x, y), m.
@@ -291,6 +312,44 @@ mod tests {
         let q = plane.to_latlon(x, y);
         assert_relative_eq!(q.lat_deg, p.lat_deg, epsilon = 1e-9);
         assert_relative_eq!(q.lon_deg, p.lon_deg, epsilon = 1e-9);
+    }
+
+    #[test]
+    fn tangent_plane_keeps_distance_and_bearing() {
+        // The plane is azimuthal equidistant: |(x, y)| is the haversine distance and
+        // atan2(x, y) the initial great-circle bearing (formulas above), for points near
+        // and far, in both hemispheres and across the date line.
+        for (o_lat, o_lon) in [(45.5, -140.0), (-33.0, 179.5), (5.0, 0.0), (80.0, 20.0)] {
+            let o = LatLon::new(o_lat, o_lon).unwrap();
+            let plane = TangentPlane::new(o);
+            for (dlat, dlon) in [
+                (0.003, 0.0),
+                (0.0, -0.004),
+                (1.2, 3.4),
+                (-4.0, 1.0),
+                (7.5, -12.0),
+                (-15.0, -20.0),
+            ] {
+                let p = LatLon::new((o_lat + dlat).clamp(-89.0, 89.0), o_lon + dlon).unwrap();
+                let (x, y) = plane.to_xy(p);
+                let d = distance_m(o, p);
+                assert_relative_eq!((x * x + y * y).sqrt(), d, max_relative = 1e-10);
+                let b = wrap_deg(atan2(x, y).to_degrees());
+                let want = bearing_deg(o, p);
+                let db = (b - want).abs();
+                assert!(db.min(360.0 - db) < 1e-7, "{b} {want}");
+            }
+            assert_eq!(plane.to_xy(o), (0.0, 0.0));
+        }
+        // The antipode keeps its distance (half the circumference), so a distance check
+        // still refuses it.
+        let plane = TangentPlane::new(LatLon::new(10.0, 20.0).unwrap());
+        let (x, y) = plane.to_xy(LatLon::new(-10.0, -160.0).unwrap());
+        assert_relative_eq!(
+            (x * x + y * y).sqrt(),
+            core::f64::consts::PI * EARTH_RADIUS,
+            max_relative = 1e-6
+        );
     }
 
     #[test]

@@ -17,6 +17,7 @@
 //! | [`sounding`] | a radiosonde profile: θ, humidity, heights, stability, tropopause, lid, Froude, barotropy |
 //! | [`temp_code`] | decoder of WMO FM 35 TEMP reports (Parts A and B) into a profile |
 //! | [`linalg`] | the small Householder least-squares solver behind the fit |
+//! | [`real`] | f64 or f32: the precision a generic calculation runs in |
 //!
 //! Units are SI throughout (m, s, K, Pa-derived hPa only at the edges); latitude and
 //! longitude in degrees. Conversions for display belong to the user interfaces.
@@ -46,6 +47,7 @@ pub mod error;
 pub mod geo;
 pub mod linalg;
 pub mod network;
+pub mod real;
 pub mod rossby;
 pub mod rotation;
 pub mod sounding;

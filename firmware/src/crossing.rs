@@ -3,7 +3,8 @@
 //! two plots: the tracks in plan view with the ridge axis, and a cross-section of
 //! terrain, lid and ζ along the track.
 //!
-//! All figures come from `leeward_core::crossing::run`; this module only keeps points and
+//! All figures come from `leeward_core::crossing` (its f32 track on the device, f64 on a
+//! host: see `compute`); this module only keeps points and
 //! maps them to pixels (plain longitude and latitude, no projection physics).
 
 use crate::field::{FieldSpec, Kind};
@@ -224,13 +225,24 @@ pub struct CrossingView {
     pub flat_track: Track,
 }
 
-/// Run both crossings.
+#[cfg(not(target_os = "none"))]
+use crossing::run as run_track;
+/// The core's track on this build: on the device (a bare-metal target), the f32 track
+/// (`crossing::run_f32`): its FPU does single precision in hardware and f64 in software,
+/// the track takes about 18 times more instructions in f64 (docs/performance.md, "f32 against f64"). On
+/// a host (the simulator and the tests), the f64 reference (`crossing::run`), whose
+/// figures the device's agree with to within a step of the integration
+/// (tests/tests/crossing_f32.rs): the simulator's screens are the reference ones.
+#[cfg(target_os = "none")]
+use crossing::run_f32 as run_track;
+
+/// Run both crossings (see `run_track` for the precision).
 pub fn compute(input: CrossingInput) -> Result<CrossingView> {
     let mut track = Track::default();
-    let ridge = crossing::run(&input, &mut track)?;
+    let ridge = run_track(&input, &mut track)?;
     track.finish(&ridge.end);
     let mut flat_track = Track::default();
-    let flat = crossing::run(&input.without_ridge(), &mut flat_track)?;
+    let flat = run_track(&input.without_ridge(), &mut flat_track)?;
     flat_track.finish(&flat.end);
     Ok(CrossingView {
         input,

@@ -5,7 +5,7 @@ use core::fmt::Write as _;
 use core::hint::black_box;
 
 use leeward_core::column::stretch;
-use leeward_core::crossing::{run, CrossingInput, Discard};
+use leeward_core::crossing::{run, run_f32, CrossingInput, Discard};
 use leeward_core::demo;
 use leeward_core::geo::{LatLon, TangentPlane};
 use leeward_core::network::{analyse, FitOptions, Model, Network, Reference, Station};
@@ -165,15 +165,35 @@ pub fn stretching(r: &mut Report) {
     );
 }
 
-/// A 3000 km ridge crossing over the demo ridge at the default step.
+/// A 3000 km ridge crossing over the demo ridge at the default step, as the device runs
+/// it (`crossing::run_f32`, the firmware's path), checked against the physics and
+/// against the f64 track (`crossing::run`, counted as a part).
 pub fn crossing(r: &mut Report) {
     // 3000 km over the demo ridge at the default 5 km step, 20 m/s from the west.
     let mut input = CrossingInput::new(demo::ridge(), 20.0, 270.0, demo::LID_M);
     input.max_length_m = 3_000_000.0;
     input.stop_after_second_trough = false;
-    let (m, c) = measure(|| run(black_box(&input), &mut Discard));
+    let (m, c) = measure(|| run_f32(black_box(&input), &mut Discard));
     r.count("ridge crossing 3000 km, 5 km step", &m, CALC_BUDGET);
-    let Ok(c) = c else {
+    let (m64, c64) = measure(|| run(black_box(&input), &mut Discard));
+    r.stack("ridge crossing in f64", &m64);
+    cortex_m_semihosting::hprintln!(
+        "part {:>9} {:>6} ridge crossing 3000 km, 5 km step, the track in f64 (crossing::run)",
+        m64.instructions,
+        m64.stack_bytes
+    );
+    // What the device's Ridge crossing task computes for the demo wind: both tracks (over
+    // the ridge, to its second trough, and over flat ground, its full 16 000 km).
+    let (mf, _) = measure(|| {
+        leeward_firmware::crossing::compute(black_box(demo::crossing(demo::U0_MS, 270.0)))
+    });
+    r.stack("firmware crossing::compute", &mf);
+    cortex_m_semihosting::hprintln!(
+        "part {:>9} {:>6} firmware crossing::compute, demo wind (both f32 tracks: over the ridge to its second trough, flat ground 16000 km)",
+        mf.instructions,
+        mf.stack_bytes
+    );
+    let (Ok(c), Ok(c64)) = (c, c64) else {
         r.check(
             "ridge crossing",
             false,
@@ -193,22 +213,47 @@ pub fn crossing(r: &mut Report) {
         ),
     );
     // FIELD-NOTES §4: the column shrinks over the ridge and turns anticyclonic; a lee
-    // trough lies downstream of the axis; (ζ + f)/H is conserved (rounding only, 1e-10 as
-    // in tests/tests/crossing.rs); 3000 km at 5 km is 600 steps.
+    // trough lies downstream of the axis; (ζ + f)/H is conserved: to rounding, 1e-10 in
+    // f64 as in tests/tests/crossing.rs, 1e-5 in f32 (its rounding is 6e-8 relative; ζ + f
+    // is a sum of terms of order f, each rounded); 3000 km at 5 km is 600 steps.
     let trough_x = c.trough.map(|t| t.axis_distance_m).unwrap_or(f64::NAN);
     let ok = c.steps == 600
-        && c.pv_drift_rel < 1e-10
+        && c.pv_drift_rel < 1e-5
+        && c64.pv_drift_rel < 1e-10
         && c.most_anticyclonic_zeta < 0.0
         && trough_x > 0.0;
     r.check(
         "ridge crossing: PV kept, lee trough downstream",
         ok,
         format_args!(
-            "{} steps, PV drift {:e}, most anticyclonic zeta {:e} /s, lee trough {:.0} km past the axis",
+            "{} steps, PV drift f32 {:e} f64 {:e}, most anticyclonic zeta {:e} /s, lee trough {:.0} km past the axis",
             c.steps,
             c.pv_drift_rel,
+            c64.pv_drift_rel,
             c.most_anticyclonic_zeta,
             trough_x / 1000.0
+        ),
+    );
+    // The f32 track against the f64 one on the target, with the tolerances of the host's
+    // differential test (tests/tests/crossing_f32.rs): the trough within two steps, the
+    // end point within 0.1 % of the path, ζ at the trough within 0.1 % of the track's
+    // signal (|ζ − ζ_start| there).
+    let t64 = c64.trough.map(|t| t.axis_distance_m).unwrap_or(f64::NAN);
+    let z = |c: &leeward_core::crossing::Crossing| c.trough.map_or(f64::NAN, |t| t.point.zeta);
+    let signal = libm::fabs(z(&c64) - c64.start.zeta);
+    let end_m = leeward_core::geo::distance_m(c.end.pos, c64.end.pos);
+    r.check(
+        "ridge crossing: f32 track against the f64 one",
+        libm::fabs(trough_x - t64) <= 10_000.0
+            && end_m <= 1e-3 * c64.end.s_m
+            && libm::fabs(z(&c) - z(&c64)) <= 1e-3 * signal,
+        format_args!(
+            "lee trough {:.1} km (f64 {:.1} km), end points {:.1} m apart, zeta at the trough {:e} (f64 {:e}) /s",
+            trough_x / 1000.0,
+            t64 / 1000.0,
+            end_m,
+            z(&c),
+            z(&c64)
         ),
     );
 }
@@ -484,6 +529,24 @@ pub fn breakdown(r: &mut Report) {
             let (m, _) = measure(|| analyse(black_box(&net), black_box(&opts)));
             part(r, name, &m);
         }
+    }
+    if let Some(net) = spiral_network(32) {
+        let plane = TangentPlane::new(LatLon {
+            lat_deg: NET_LAT,
+            lon_deg: NET_LON,
+        });
+        let (m, _) = measure(|| {
+            let mut xy = [(0.0, 0.0); 32];
+            for (p, s) in xy.iter_mut().zip(&black_box(&net).stations) {
+                *p = plane.to_xy(s.pos);
+            }
+            xy
+        });
+        part(
+            r,
+            "32 stations onto the tangent plane (geo::TangentPlane::to_xy)",
+            &m,
+        );
     }
     for n in [8usize, 32] {
         let mut ls = leeward_core::linalg::LeastSquares::new(6);
