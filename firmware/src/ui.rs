@@ -48,11 +48,36 @@ pub enum Font {
     Big,
 }
 
+/// Index of `c` in the glyph images of embedded-graphics' ISO 8859-1 fonts, as that
+/// crate's own mapping gives it (its two ranges, U+0020–U+007F and U+00A0–U+00FF, and '?'
+/// for any other character), but by arithmetic: the crate's mapping walks its characters
+/// one by one, which cost the M4F thousands of instructions per character drawn
+/// (docs/performance.md). A unit test checks the two agree on every character.
+fn latin1_index(c: char) -> usize {
+    match c as u32 {
+        u @ 0x20..=0x7F => (u - 0x20) as usize,
+        u @ 0xA0..=0xFF => (u - 0xA0) as usize + 96,
+        _ => '?' as usize - ' ' as usize,
+    }
+}
+
+/// The 8×13 font with the fast mapping.
+const SMALL_FONT: MonoFont<'static> = MonoFont {
+    glyph_mapping: &latin1_index,
+    ..iso_8859_1::FONT_8X13
+};
+
+/// The 10×20 font with the fast mapping.
+const BODY_FONT: MonoFont<'static> = MonoFont {
+    glyph_mapping: &latin1_index,
+    ..iso_8859_1::FONT_10X20
+};
+
 impl Font {
     fn mono(self) -> &'static MonoFont<'static> {
         match self {
-            Font::Small => &iso_8859_1::FONT_8X13,
-            Font::Body | Font::Big => &iso_8859_1::FONT_10X20,
+            Font::Small => &SMALL_FONT,
+            Font::Body | Font::Big => &BODY_FONT,
         }
     }
     fn scale(self) -> u32 {
@@ -350,6 +375,19 @@ mod tests {
         assert_eq!(log.0.as_slice(), [false]);
         let inked = d.affected_area();
         assert!(area.contains(inked.top_left) && area.contains(inked.bottom_right().unwrap()));
+    }
+
+    #[test]
+    fn the_fast_glyph_index_is_the_fonts_own() {
+        use embedded_graphics::mono_font::mapping::{GlyphMapping, ISO_8859_1};
+        for u in 0..0x3000u32 {
+            if let Some(c) = char::from_u32(u) {
+                assert_eq!(latin1_index(c), ISO_8859_1.index(c), "U+{u:04X}");
+            }
+        }
+        for c in ['\u{1F600}', '\u{FFFD}', char::MAX] {
+            assert_eq!(latin1_index(c), ISO_8859_1.index(c));
+        }
     }
 
     #[test]
