@@ -19,6 +19,9 @@
 #![no_main]
 #![deny(clippy::unwrap_used, clippy::expect_used, clippy::panic)]
 
+mod flash;
+
+use core::cell::RefCell;
 use core::sync::atomic::{AtomicBool, Ordering};
 
 use defmt_rtt as _;
@@ -35,9 +38,15 @@ use stm32f4xx_hal::{
     timer::Event,
 };
 
+use leeward_board_logic::flash::{Window, LOG_AREA, LOG_ERASE, MAP_AREA, MAP_ERASE};
 use leeward_board_logic::keypad::{self, Debouncer, COLS, ROWS};
 use leeward_board_logic::memlcd::{timing, MemoryLcd};
-use leeward_firmware::{framebuffer::FrameBuffer, storage::MemStorage, App, Effect};
+use leeward_board_logic::recovery::{Choice, Prompt};
+use leeward_firmware::flash::{FlashStore, TwoFlash};
+use leeward_firmware::{framebuffer::FrameBuffer, App, Effect, Key};
+
+/// The store on the internal flash: the map in sectors 1-3, the log in sector 7.
+type Store = FlashStore<TwoFlash<flash::Sectors<MAP_ERASE>, flash::Sectors<LOG_ERASE>>>;
 
 /// EXTI lines of the keypad columns PB5–PB9.
 const COL_EXTI_LINES: u32 = 0b11_1110_0000;
@@ -157,6 +166,34 @@ fn arm_wake(rows: &mut [Row; ROWS], cols: &mut [Col; COLS], exti: &mut pac::EXTI
     }
 }
 
+/// Wait for one key press (scanning every 5 ms, VCOM kept going): for the power-on
+/// question, before the main loop runs.
+fn wait_key<S: SpiBus<u8>, P: OutputPin, D: DelayNs>(
+    rows: &mut [Row; ROWS],
+    cols: &[Col; COLS],
+    debouncer: &mut Debouncer,
+    panel: &mut Panel<S, P, D>,
+    scan_cycles: u32,
+) -> Key {
+    loop {
+        if VCOM_TICK.swap(false, Ordering::AcqRel) {
+            panel.command(|lcd| lcd.toggle_vcom());
+        }
+        if let Some(key) = debouncer.update(scan(rows, cols)).into_iter().next() {
+            return key;
+        }
+        cortex_m::asm::delay(scan_cycles);
+    }
+}
+
+/// Open the store on the internal flash; `None` if the layout is refused (a build
+/// mistake: the check runs on the host too).
+fn open_store(ctl: &'static RefCell<pac::FLASH>) -> Option<Store> {
+    let map = flash::Sectors::new(ctl, Window::new(MAP_AREA, MAP_ERASE)?);
+    let log = flash::Sectors::new(ctl, Window::new(LOG_AREA, LOG_ERASE)?);
+    FlashStore::open(TwoFlash { map, log }, MAP_AREA, LOG_AREA).ok()
+}
+
 #[cortex_m_rt::entry]
 fn main() -> ! {
     let (Some(dp), Some(cp)) = (pac::Peripherals::take(), cortex_m::Peripherals::take()) else {
@@ -165,6 +202,8 @@ fn main() -> ! {
     // 16 MHz from the internal oscillator, no PLL: ample for the UI, and the lowest
     // running current.
     let mut rcc = dp.RCC.freeze(Config::hsi().sysclk(16.MHz()));
+    // Core cycles of one 5 ms scan period (the power-on question's busy wait).
+    let scan_cycles = rcc.clocks.sysclk().raw() / SCAN_HZ;
     let gpioa = dp.GPIOA.split(&mut rcc);
     let gpiob = dp.GPIOB.split(&mut rcc);
     let mut syscfg = dp.SYSCFG.constrain(&mut rcc);
@@ -224,23 +263,52 @@ fn main() -> ! {
         defmt::warn!("VCOM timer did not start");
     }
 
-    // Settings live in RAM until the flash storage arrives (see docs/board.md).
-    let mut storage = MemStorage::new();
-    let Some(app) = cortex_m::singleton!(: App = App::power_on(&mut storage)) else {
-        halt("app already made");
-    };
     let Some(fb) = cortex_m::singleton!(: FrameBuffer = FrameBuffer::new()) else {
         halt("frame buffer already made");
     };
-
     panel.command(|lcd| lcd.clear_command());
     disp.set_high();
+
+    // Settings, datasets and the results log, kept in the internal flash.
+    let Some(flash_ctl) = cortex_m::singleton!(: RefCell<pac::FLASH> = RefCell::new(dp.FLASH))
+    else {
+        halt("flash taken twice");
+    };
+    let Some(opened) = open_store(flash_ctl) else {
+        halt("flash layout refused");
+    };
+    let Some(storage) = cortex_m::singleton!(: Store = opened) else {
+        halt("store already made");
+    };
+    let health = storage.health();
+    defmt::info!("store: {}", health);
+    let mut debouncer = Debouncer::new();
+    if let Some(prompt) = Prompt::for_health(&health) {
+        // SAFETY: the handler touches only its own flag and pending bit.
+        unsafe { NVIC::unmask(Interrupt::TIM5) };
+        if prompt.draw(fb, &mut ()).is_err() {
+            defmt::warn!("prompt not drawn");
+        }
+        panel.flush(fb);
+        let key = wait_key(&mut rows, &cols, &mut debouncer, &mut panel, scan_cycles);
+        if let Choice::Erase { map, log } = prompt.answer(key) {
+            if map && storage.erase_datasets().is_err() {
+                defmt::warn!("map area not erased");
+            }
+            if log && storage.erase_log().is_err() {
+                defmt::warn!("log area not erased");
+            }
+            defmt::info!("store after erasing: {}", storage.health());
+        }
+    }
+    let Some(app) = cortex_m::singleton!(: App = App::power_on(storage)) else {
+        halt("app already made");
+    };
     if app.render(fb).is_err() {
         defmt::warn!("first render failed");
     }
     panel.flush(fb);
 
-    let mut debouncer = Debouncer::new();
     let mut scanning = false;
     arm_wake(&mut rows, &mut cols, &mut exti);
     // SAFETY: the handlers above touch only their own flags and pending bits.
@@ -270,7 +338,7 @@ fn main() -> ! {
             for key in debouncer.update(scan(&mut rows, &cols)) {
                 let effect = app.handle(key);
                 defmt::debug!("{} -> {}", key, effect);
-                if app.apply(effect, &mut storage).is_err() {
+                if app.apply(effect, storage).is_err() {
                     defmt::warn!("settings not stored");
                 }
                 redraw |= effect != Effect::Nothing;
