@@ -6,6 +6,9 @@
 //!   settings record, one commit record per dataset slot, and the dataset chunks;
 //! - the **log** area, a sequential-storage queue of [`LogEntry`] records, oldest first.
 //!
+//! Both areas may be on one NOR flash, or on two flash types of different erase sizes
+//! ([`TwoFlash`], as the board's 16 KiB and 128 KiB sectors): see [`Areas`].
+//!
 //! A dataset is split into chunks of at most [`CHUNK_BYTES`] (a map item must fit in one
 //! erase page, and a long sounding does not). Each slot has two banks of chunk keys; a new
 //! generation of a dataset writes all its chunks into the bank the current generation

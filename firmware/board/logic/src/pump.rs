@@ -11,7 +11,8 @@
 
 use leeward_firmware::link::frame::MAX_WIRE;
 use leeward_firmware::link::LinkServer;
-use leeward_firmware::storage::Storage;
+use leeward_firmware::settings::Settings;
+use leeward_firmware::storage::{Catalog, DataKind, Storage, StoreError};
 
 /// Bytes of replies waiting to go out: room for two whole replies.
 pub const OUTBOX: usize = 2 * MAX_WIRE;
@@ -163,6 +164,69 @@ impl Pump {
     }
 }
 
+/// A store that notes whether the link changed it (a put or a delete succeeded), so the
+/// device can re-read its list for the screen.
+pub struct Watched<'s, S> {
+    inner: &'s mut S,
+    changed: bool,
+}
+
+impl<'s, S: Storage> Watched<'s, S> {
+    /// Watch `inner`.
+    pub fn new(inner: &'s mut S) -> Self {
+        Watched {
+            inner,
+            changed: false,
+        }
+    }
+    /// Whether a change went through.
+    pub fn changed(&self) -> bool {
+        self.changed
+    }
+    fn note<T, E>(&mut self, r: Result<T, E>) -> Result<T, E> {
+        self.changed |= r.is_ok();
+        r
+    }
+}
+
+impl<S: Storage> Storage for Watched<'_, S> {
+    type Error = S::Error;
+    fn load_settings(&mut self) -> Option<Settings> {
+        self.inner.load_settings()
+    }
+    fn save_settings(&mut self, settings: &Settings) -> Result<(), S::Error> {
+        let r = self.inner.save_settings(settings);
+        self.note(r)
+    }
+    fn list(&mut self) -> Catalog {
+        self.inner.list()
+    }
+    fn get(&mut self, name: &str, buf: &mut [u8]) -> Result<(DataKind, usize), StoreError> {
+        self.inner.get(name, buf)
+    }
+    fn put(&mut self, kind: DataKind, name: &str, bytes: &[u8]) -> Result<(), StoreError> {
+        let r = self.inner.put(kind, name, bytes);
+        self.note(r)
+    }
+    fn rename(&mut self, from: &str, to: &str) -> Result<(), StoreError> {
+        let r = self.inner.rename(from, to);
+        self.note(r)
+    }
+    fn delete(&mut self, name: &str) -> Result<(), StoreError> {
+        let r = self.inner.delete(name);
+        self.note(r)
+    }
+    fn free_bytes(&mut self) -> usize {
+        self.inner.free_bytes()
+    }
+    fn log_len(&mut self) -> u32 {
+        self.inner.log_len()
+    }
+    fn log_entry(&mut self, index: u32, buf: &mut [u8]) -> Result<usize, StoreError> {
+        self.inner.log_entry(index, buf)
+    }
+}
+
 #[cfg(test)]
 mod tests {
     extern crate std;
@@ -292,6 +356,61 @@ mod tests {
         assert_eq!(got.len(), 1501, "one reply per junk frame, and the Hello's");
         assert_eq!(got.last(), Some(&(9, true)));
         assert_eq!(pump.lost(), 0);
+    }
+
+    #[test]
+    fn a_put_over_the_link_marks_the_store_changed_a_status_does_not() {
+        use leeward_firmware::link::crc32;
+        let mut staging = [0u8; 2048];
+        let mut server = LinkServer::new(&mut staging);
+        let mut store = MemStorage::new();
+        let data = [7u8; 100];
+        let run = |server: &mut LinkServer<'_>, store: &mut MemStorage, reqs: &[Request<'_>]| {
+            let mut w = Watched::new(store);
+            let mut pump = Pump::new();
+            let input: Vec<u8> = reqs
+                .iter()
+                .enumerate()
+                .flat_map(|(i, r)| request(i as u16 + 1, r))
+                .collect();
+            let mut port = Port {
+                input,
+                at: 0,
+                output: Vec::new(),
+            };
+            for _ in 0..1000 {
+                pump.serve(server, &mut w, |b| port.read(b), 64);
+                pump.flush(|b| {
+                    port.output.extend_from_slice(b);
+                    b.len()
+                });
+            }
+            (w.changed(), replies(&port.output))
+        };
+        let hello = Request::Hello {
+            version: PROTOCOL_VERSION,
+        };
+        let (changed, r) = run(&mut server, &mut store, &[hello.clone(), Request::Status]);
+        assert!(!changed);
+        assert_eq!(r, [(1, true), (2, true)]);
+        let put = [
+            hello,
+            Request::PutBegin {
+                name: "RIDGE1",
+                kind: DataKind::Ridge.to_byte(),
+                total: 100,
+                crc: crc32(&data),
+            },
+            Request::PutData {
+                offset: 0,
+                bytes: &data,
+            },
+            Request::PutCommit,
+        ];
+        let (changed, r) = run(&mut server, &mut store, &put);
+        assert!(changed, "{r:?}");
+        assert_eq!(r, [(1, true), (2, true), (3, true), (4, true)]);
+        assert_eq!(store.list().len(), 1);
     }
 
     #[test]
