@@ -216,6 +216,69 @@ mod tests {
         );
     }
 
+    type Sim<const P: usize> = leeward_firmware::flash::sim::SimFlash<Vec<u8>, 4, P>;
+    type BoardLike = leeward_firmware::flash::TwoFlash<Sim<1024>, Sim<8192>>;
+    const MAP: core::ops::Range<u32> = 0x400..0x1000;
+    const LOG: core::ops::Range<u32> = 0x6000..0x8000;
+
+    fn open(f: BoardLike) -> leeward_firmware::flash::FlashStore<BoardLike> {
+        leeward_firmware::flash::FlashStore::open(f, MAP, LOG).unwrap()
+    }
+
+    #[test]
+    fn power_on_keeps_what_was_stored_and_an_erase_brings_a_wrecked_map_back() {
+        use leeward_firmware::flash::sim::SimFlash;
+        use leeward_firmware::storage::Storage;
+        use leeward_firmware::App;
+        // The first power-on seeds the demo set and the settings (App::open_store);
+        // a reset (a new store from the same bytes) finds them again, with no prompt.
+        let f = leeward_firmware::flash::TwoFlash {
+            map: SimFlash::new(std::vec![0xFF; MAP.end as usize], 1),
+            log: SimFlash::new(std::vec![0xFF; LOG.end as usize], 2),
+        };
+        let mut st = open(f);
+        let _app = App::power_on(&mut st);
+        let listed = st.list();
+        assert!(!listed.is_empty());
+        let mut st = open(st.into_flash());
+        assert_eq!(Prompt::for_health(&st.health()), None);
+        assert_eq!(st.list(), listed);
+        assert!(st.load_settings().is_some());
+        // Wreck the map's page markers: the store cannot read it, the prompt offers the
+        // erase, OK erases, and the next power-on starts afresh.
+        let mut f = st.into_flash();
+        for b in &mut f.map.bytes_mut()[MAP.start as usize..] {
+            *b = 0x00;
+        }
+        let mut st = open(f);
+        let p = Prompt::for_health(&st.health());
+        assert_eq!(
+            p,
+            Some(Prompt::Unreadable {
+                map: true,
+                log: false
+            }),
+            "{:?}",
+            st.health()
+        );
+        let Some(Choice::Erase {
+            map: true,
+            log: false,
+        }) = p.map(|p| p.answer(Key::Ok))
+        else {
+            panic!("OK does not erase the map");
+        };
+        st.erase_datasets().unwrap();
+        let _app = App::power_on(&mut st);
+        let mut st = open(st.into_flash());
+        assert_eq!(Prompt::for_health(&st.health()), None);
+        assert_eq!(
+            st.list(),
+            listed,
+            "the fresh store holds the demo set again"
+        );
+    }
+
     #[test]
     fn every_prompt_fits_its_notice() {
         let prompts = [
