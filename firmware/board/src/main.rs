@@ -14,11 +14,21 @@
 //! are driven low and a key press pulls its column low, which raises EXTI9_5 and wakes the
 //! core; it then scans every 5 ms (TIM2) until the debouncer reports all keys released,
 //! and sleeps on the key interrupt again. TIM5 wakes it once a second to invert the
-//! display's VCOM.
+//! display's VCOM; the USB interrupt wakes it for the data link.
+//!
+//! Settings, datasets and the results log are kept in the internal flash (the store's map
+//! in sectors 1–3, its log in sector 7: `flash.rs`, docs/board.md "Flash storage"); the
+//! data link is USB CDC serial on PA11/PA12 (`link.rs`). The clock is 48 MHz from the
+//! 25 MHz crystal through the PLL, or the internal 16 MHz without USB if the crystal does
+//! not start.
 #![no_std]
 #![no_main]
 #![deny(clippy::unwrap_used, clippy::expect_used, clippy::panic)]
 
+mod flash;
+mod link;
+
+use core::cell::RefCell;
 use core::sync::atomic::{AtomicBool, Ordering};
 
 use defmt_rtt as _;
@@ -28,23 +38,44 @@ use embedded_hal::spi::SpiBus;
 use panic_probe as _;
 use stm32f4xx_hal::{
     gpio::{AnyPin, Edge, ExtiPin, Input, OpenDrain, Output},
+    otg_fs::{UsbBus, UsbBusType, USB},
     pac::{self, interrupt, Interrupt, NVIC},
     prelude::*,
     rcc::Config,
     spi::{Mode, Phase, Polarity},
     timer::Event,
 };
+use usb_device::bus::UsbBusAllocator;
+use usb_device::device::{StringDescriptors, UsbDeviceBuilder, UsbVidPid};
+use usbd_serial::SerialPort;
 
+use leeward_board_logic::flash::{Window, LOG_AREA, LOG_ERASE, MAP_AREA, MAP_ERASE};
 use leeward_board_logic::keypad::{self, Debouncer, COLS, ROWS};
 use leeward_board_logic::memlcd::{timing, MemoryLcd};
-use leeward_firmware::{framebuffer::FrameBuffer, storage::MemStorage, App, Effect};
+use leeward_board_logic::pump::Watched;
+use leeward_board_logic::recovery::{Choice, Prompt};
+use leeward_firmware::flash::{FlashStore, TwoFlash, MAX_DATASET_BYTES};
+use leeward_firmware::link::LinkServer;
+use leeward_firmware::{framebuffer::FrameBuffer, App, Effect, Key};
+
+/// The store on the internal flash: the map in sectors 1-3, the log in sector 7.
+type Store = FlashStore<TwoFlash<flash::Sectors<MAP_ERASE>, flash::Sectors<LOG_ERASE>>>;
 
 /// EXTI lines of the keypad columns PB5–PB9.
 const COL_EXTI_LINES: u32 = 0b11_1110_0000;
 /// Matrix scan rate while a key is held or settling, Hz (5 ms; see keypad::STABLE_SCANS).
 const SCAN_HZ: u32 = 200;
-/// Core cycles for a row to settle through the column pull-ups (5 µs at 16 MHz).
-const ROW_SETTLE_CYCLES: u32 = 80;
+/// Core cycles for a row to settle through the column pull-ups: 5 µs at 48 MHz (15 µs
+/// on the 16 MHz fallback clock: longer is harmless).
+const ROW_SETTLE_CYCLES: u32 = 240;
+/// The crystal: 25 MHz on the WeAct "Black Pill" F411CE (from memory of its schematic:
+/// check it on the board used).
+const HSE_HZ: u32 = 25_000_000;
+/// Checks of HSERDY, 100 µs apart at the 16 MHz reset clock: about 100 ms for the crystal
+/// to start (its start-up time is a few ms, from memory of the datasheet).
+const HSE_POLLS: u32 = 1000;
+/// Words of USB endpoint memory (OUT buffers: control 64 B and bulk 64 B need 32 words).
+const EP_WORDS: usize = 64;
 
 static KEY_EDGE: AtomicBool = AtomicBool::new(false);
 static SCAN_TICK: AtomicBool = AtomicBool::new(false);
@@ -70,6 +101,25 @@ fn TIM5() {
     // SAFETY: as for TIM2, on TIM5.
     unsafe { (*pac::TIM5::ptr()).sr().write(|w| w.bits(0)) };
     VCOM_TICK.store(true, Ordering::Release);
+}
+
+#[interrupt]
+fn OTG_FS() {
+    link::on_interrupt();
+}
+
+/// Start the crystal oscillator; false (and it is switched off again) if it is not ready
+/// within [`HSE_POLLS`] checks. The HAL's own start waits forever.
+fn hse_starts(rcc: &pac::RCC) -> bool {
+    rcc.cr().modify(|_, w| w.hseon().set_bit());
+    for _ in 0..HSE_POLLS {
+        if rcc.cr().read().hserdy().bit_is_set() {
+            return true;
+        }
+        cortex_m::asm::delay(1600);
+    }
+    rcc.cr().modify(|_, w| w.hseon().clear_bit());
+    false
 }
 
 /// Stop with a message in the log (no panic: the device just waits for a reset).
@@ -157,14 +207,56 @@ fn arm_wake(rows: &mut [Row; ROWS], cols: &mut [Col; COLS], exti: &mut pac::EXTI
     }
 }
 
+/// Wait for one key press (scanning every 5 ms, VCOM kept going): for the power-on
+/// question, before the main loop runs.
+fn wait_key<S: SpiBus<u8>, P: OutputPin, D: DelayNs>(
+    rows: &mut [Row; ROWS],
+    cols: &[Col; COLS],
+    debouncer: &mut Debouncer,
+    panel: &mut Panel<S, P, D>,
+    scan_cycles: u32,
+) -> Key {
+    loop {
+        if VCOM_TICK.swap(false, Ordering::AcqRel) {
+            panel.command(|lcd| lcd.toggle_vcom());
+        }
+        if let Some(key) = debouncer.update(scan(rows, cols)).into_iter().next() {
+            return key;
+        }
+        cortex_m::asm::delay(scan_cycles);
+    }
+}
+
+/// Open the store on the internal flash; `None` if the layout is refused (a build
+/// mistake: the check runs on the host too).
+fn open_store(ctl: &'static RefCell<pac::FLASH>) -> Option<Store> {
+    let map = flash::Sectors::new(ctl, Window::new(MAP_AREA, MAP_ERASE)?);
+    let log = flash::Sectors::new(ctl, Window::new(LOG_AREA, LOG_ERASE)?);
+    FlashStore::open(TwoFlash { map, log }, MAP_AREA, LOG_AREA).ok()
+}
+
 #[cortex_m_rt::entry]
 fn main() -> ! {
     let (Some(dp), Some(cp)) = (pac::Peripherals::take(), cortex_m::Peripherals::take()) else {
         halt("peripherals taken twice");
     };
-    // 16 MHz from the internal oscillator, no PLL: ample for the UI, and the lowest
-    // running current.
-    let mut rcc = dp.RCC.freeze(Config::hsi().sysclk(16.MHz()));
+    // USB full speed needs 48 MHz within 0.25 %: the crystal through the PLL (the
+    // internal oscillator is only trimmed to about 1 %). 25 MHz / 25 x 384 = 384 MHz;
+    // / 8 = 48 MHz for the core and / 8 = 48 MHz for USB. Should the crystal not start
+    // (cold, damage), the device runs from the internal 16 MHz without USB rather than
+    // not at all.
+    let usb_clock = hse_starts(&dp.RCC);
+    let cfg = if usb_clock {
+        Config::hse(HSE_HZ.Hz()).sysclk(48.MHz()).require_pll48clk()
+    } else {
+        Config::hsi().sysclk(16.MHz())
+    };
+    let mut rcc = dp.RCC.freeze(cfg);
+    if !usb_clock {
+        defmt::warn!("crystal did not start: 16 MHz internal clock, no USB link");
+    }
+    // Core cycles of one 5 ms scan period (the power-on question's busy wait).
+    let scan_cycles = rcc.clocks.sysclk().raw() / SCAN_HZ;
     let gpioa = dp.GPIOA.split(&mut rcc);
     let gpiob = dp.GPIOB.split(&mut rcc);
     let mut syscfg = dp.SYSCFG.constrain(&mut rcc);
@@ -224,23 +316,87 @@ fn main() -> ! {
         defmt::warn!("VCOM timer did not start");
     }
 
-    // Settings live in RAM until the flash storage arrives (see docs/board.md).
-    let mut storage = MemStorage::new();
-    let Some(app) = cortex_m::singleton!(: App = App::power_on(&mut storage)) else {
-        halt("app already made");
-    };
     let Some(fb) = cortex_m::singleton!(: FrameBuffer = FrameBuffer::new()) else {
         halt("frame buffer already made");
     };
-
     panel.command(|lcd| lcd.clear_command());
     disp.set_high();
+
+    // Settings, datasets and the results log, kept in the internal flash.
+    let Some(flash_ctl) = cortex_m::singleton!(: RefCell<pac::FLASH> = RefCell::new(dp.FLASH))
+    else {
+        halt("flash taken twice");
+    };
+    let Some(opened) = open_store(flash_ctl) else {
+        halt("flash layout refused");
+    };
+    let Some(storage) = cortex_m::singleton!(: Store = opened) else {
+        halt("store already made");
+    };
+    let health = storage.health();
+    defmt::info!("store: {}", health);
+    let mut debouncer = Debouncer::new();
+    if let Some(prompt) = Prompt::for_health(&health) {
+        // SAFETY: the handler touches only its own flag and pending bit.
+        unsafe { NVIC::unmask(Interrupt::TIM5) };
+        if prompt.draw(fb, &mut ()).is_err() {
+            defmt::warn!("prompt not drawn");
+        }
+        panel.flush(fb);
+        let key = wait_key(&mut rows, &cols, &mut debouncer, &mut panel, scan_cycles);
+        if let Choice::Erase { map, log } = prompt.answer(key) {
+            if map && storage.erase_datasets().is_err() {
+                defmt::warn!("map area not erased");
+            }
+            if log && storage.erase_log().is_err() {
+                defmt::warn!("log area not erased");
+            }
+            defmt::info!("store after erasing: {}", storage.health());
+        }
+    }
+    let Some(app) = cortex_m::singleton!(: App = App::power_on(storage)) else {
+        halt("app already made");
+    };
+
+    // The data link on USB (none without the crystal's clock).
+    let mut usb = None;
+    if usb_clock {
+        let periph = USB::new(
+            (dp.OTG_FS_GLOBAL, dp.OTG_FS_DEVICE, dp.OTG_FS_PWRCLK),
+            (gpioa.pa11, gpioa.pa12),
+            &rcc.clocks,
+        );
+        let (Some(ep), Some(staging)) = (
+            cortex_m::singleton!(: [u32; EP_WORDS] = [0; EP_WORDS]),
+            cortex_m::singleton!(: [u8; MAX_DATASET_BYTES] = [0; MAX_DATASET_BYTES]),
+        ) else {
+            halt("USB buffers already made");
+        };
+        let Some(bus) =
+            cortex_m::singleton!(: UsbBusAllocator<UsbBusType> = UsbBus::new(periph, ep))
+        else {
+            halt("USB bus already made");
+        };
+        let serial = SerialPort::new(bus);
+        // The shared test IDs of stm32f4xx-hal's USB serial examples (a product needs
+        // its own vendor and product IDs).
+        let Ok(builder) = UsbDeviceBuilder::new(bus, UsbVidPid(0x16c0, 0x27dd))
+            .device_class(usbd_serial::USB_CLASS_CDC)
+            .strings(&[StringDescriptors::default()
+                .manufacturer("leeward")
+                .product("leeward handheld")
+                .serial_number("1")])
+        else {
+            halt("USB strings refused");
+        };
+        let server = LinkServer::new(staging);
+        usb = cortex_m::singleton!(: link::UsbLink = link::UsbLink::new(builder.build(), serial, server));
+    }
     if app.render(fb).is_err() {
         defmt::warn!("first render failed");
     }
     panel.flush(fb);
 
-    let mut debouncer = Debouncer::new();
     let mut scanning = false;
     arm_wake(&mut rows, &mut cols, &mut exti);
     // SAFETY: the handlers above touch only their own flags and pending bits.
@@ -248,6 +404,9 @@ fn main() -> ! {
         NVIC::unmask(Interrupt::EXTI9_5);
         NVIC::unmask(Interrupt::TIM2);
         NVIC::unmask(Interrupt::TIM5);
+        if usb.is_some() {
+            NVIC::unmask(Interrupt::OTG_FS);
+        }
     }
     defmt::info!("leeward ready");
 
@@ -270,7 +429,7 @@ fn main() -> ! {
             for key in debouncer.update(scan(&mut rows, &cols)) {
                 let effect = app.handle(key);
                 defmt::debug!("{} -> {}", key, effect);
-                if app.apply(effect, &mut storage).is_err() {
+                if app.apply(effect, storage).is_err() {
                     defmt::warn!("settings not stored");
                 }
                 redraw |= effect != Effect::Nothing;
@@ -287,12 +446,29 @@ fn main() -> ! {
                 arm_wake(&mut rows, &mut cols, &mut exti);
             }
         }
+        if let Some(link) = usb.as_deref_mut() {
+            if link::USB_EVENT.swap(false, Ordering::AcqRel) || link.wants_more() {
+                let mut watched = Watched::new(&mut *storage);
+                link.service(&mut watched);
+                if watched.changed() {
+                    // The laptop stored or deleted a dataset: the lists show it now.
+                    app.open_store(storage);
+                    if app.render(fb).is_err() {
+                        defmt::warn!("render failed");
+                    }
+                    panel.flush(fb);
+                }
+            }
+        }
         // Check the flags with interrupts off, so none can slip in between the check and
         // the WFI; a pending interrupt still ends the WFI.
+        let link_more = usb.as_deref().is_some_and(|l| l.wants_more());
         cortex_m::interrupt::free(|_| {
             let busy = KEY_EDGE.load(Ordering::Acquire)
                 || VCOM_TICK.load(Ordering::Acquire)
-                || (scanning && SCAN_TICK.load(Ordering::Acquire));
+                || (scanning && SCAN_TICK.load(Ordering::Acquire))
+                || link::USB_EVENT.load(Ordering::Acquire)
+                || link_more;
             if !busy {
                 cortex_m::asm::wfi();
             }

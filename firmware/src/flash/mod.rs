@@ -6,6 +6,9 @@
 //!   settings record, one commit record per dataset slot, and the dataset chunks;
 //! - the **log** area, a sequential-storage queue of [`LogEntry`] records, oldest first.
 //!
+//! Both areas may be on one NOR flash, or on two flash types of different erase sizes
+//! ([`TwoFlash`], as the board's 16 KiB and 128 KiB sectors): see [`Areas`].
+//!
 //! A dataset is split into chunks of at most [`CHUNK_BYTES`] (a map item must fit in one
 //! erase page, and a long sounding does not). Each slot has two banks of chunk keys; a new
 //! generation of a dataset writes all its chunks into the bank the current generation
@@ -28,7 +31,7 @@ pub mod sim;
 
 use core::ops::Range;
 
-use embedded_storage::nor_flash::{MultiwriteNorFlash, NorFlash};
+use embedded_storage::nor_flash::{MultiwriteNorFlash, NorFlash, ReadNorFlash};
 use sequential_storage::cache::{Cache, Uncached};
 use sequential_storage::map::{MapConfig, MapStorage};
 use sequential_storage::queue::{QueueConfig, QueueStorage};
@@ -167,10 +170,59 @@ impl core::fmt::Display for LogWarning {
     }
 }
 
-/// Settings, datasets and results log on a NOR flash `F`.
+/// Where the store's two areas live: a single NOR flash holds both (every `NorFlash` is
+/// one), or a [`TwoFlash`] puts the map and the log on flash of different geometry, such
+/// as a microcontroller's 16 KiB and 128 KiB sectors (sequential-storage wants equal
+/// pages within an area, not across areas).
+pub trait Areas {
+    /// The flash of the map area (settings and datasets).
+    type Map: NorFlash;
+    /// The flash of the log area.
+    type Log: NorFlash;
+    /// The map area's flash.
+    fn map(&mut self) -> &mut Self::Map;
+    /// The log area's flash.
+    fn log(&mut self) -> &mut Self::Log;
+}
+
+impl<F: NorFlash> Areas for F {
+    type Map = F;
+    type Log = F;
+    fn map(&mut self) -> &mut F {
+        self
+    }
+    fn log(&mut self) -> &mut F {
+        self
+    }
+}
+
+/// The map on one flash and the log on another (each with its own erase size). Both
+/// see the same address space: the store's area ranges are offsets into it, and it
+/// refuses areas that overlap.
+#[derive(Debug, Clone)]
+pub struct TwoFlash<M, L> {
+    /// Flash of the map area.
+    pub map: M,
+    /// Flash of the log area.
+    pub log: L,
+}
+
+impl<M: NorFlash, L: NorFlash> Areas for TwoFlash<M, L> {
+    type Map = M;
+    type Log = L;
+    fn map(&mut self) -> &mut M {
+        &mut self.map
+    }
+    fn log(&mut self) -> &mut L {
+        &mut self.log
+    }
+}
+
+/// Settings, datasets and results log on the flash areas `A`: one NOR flash, or a
+/// [`TwoFlash`] with its map and its log on flash of different erase sizes.
 #[derive(Debug)]
-pub struct FlashStore<F> {
-    flash: F,
+pub struct FlashStore<A> {
+    flash: A,
     map_range: Range<u32>,
     log_range: Range<u32>,
     slots: [Slot; MAX_DATASETS],
@@ -249,12 +301,14 @@ fn store<F: NorFlash>(
     block_on(m.store_item(buf, &key, &value)).map_err(ss_err)
 }
 
-impl<F: NorFlash> FlashStore<F> {
+impl<A: Areas> FlashStore<A> {
     /// Open the store on `flash`, with the map in `map_area` and the log in `log_area`
-    /// (byte ranges of the flash, whole erase pages, not overlapping). Reads and checks
-    /// everything stored: see [`Self::health`]. An erased flash is an empty store.
-    pub fn open(flash: F, map_area: Range<u32>, log_area: Range<u32>) -> Result<Self, ConfigError> {
-        if F::WRITE_SIZE < MIN_WRITE_SIZE {
+    /// (byte ranges of the flash, whole erase pages of their own area's flash, not
+    /// overlapping: on a [`TwoFlash`] both ranges are offsets in one address space, as on
+    /// a chip with sectors of two sizes). Reads and checks everything stored: see
+    /// [`Self::health`]. An erased flash is an empty store.
+    pub fn open(flash: A, map_area: Range<u32>, log_area: Range<u32>) -> Result<Self, ConfigError> {
+        if A::Map::WRITE_SIZE < MIN_WRITE_SIZE || A::Log::WRITE_SIZE < MIN_WRITE_SIZE {
             return Err(ConfigError::WriteSizeTooSmall);
         }
         Self::_open_any_word(flash, map_area, log_area)
@@ -263,17 +317,17 @@ impl<F: NorFlash> FlashStore<F> {
     /// [`Self::open`] without the write-size check: only for the test that shows why
     /// the check is there.
     pub fn _open_any_word(
-        flash: F,
+        mut flash: A,
         map_area: Range<u32>,
         log_area: Range<u32>,
     ) -> Result<Self, ConfigError> {
         let overlap = map_area.start < log_area.end && log_area.start < map_area.end;
-        let fits =
-            map_area.end as usize <= flash.capacity() && log_area.end as usize <= flash.capacity();
+        let fits = map_area.end as usize <= flash.map().capacity()
+            && log_area.end as usize <= flash.log().capacity();
         if overlap
             || !fits
-            || MapConfig::<Async<'_, F>>::try_new(map_area.clone()).is_err()
-            || QueueConfig::<Async<'_, F>>::try_new(log_area.clone()).is_err()
+            || MapConfig::<Async<'_, A::Map>>::try_new(map_area.clone()).is_err()
+            || QueueConfig::<Async<'_, A::Log>>::try_new(log_area.clone()).is_err()
         {
             return Err(ConfigError::BadArea);
         }
@@ -307,7 +361,7 @@ impl<F: NorFlash> FlashStore<F> {
         self.health.settings_lost = false;
         self.settings = None;
         match fetch(
-            &mut self.flash,
+            self.flash.map(),
             &self.map_range,
             &mut self.buf,
             SETTINGS_KEY,
@@ -345,7 +399,7 @@ impl<F: NorFlash> FlashStore<F> {
         let mut cbytes = [0u8; 64];
         let n = commit.encode(&mut cbytes)?;
         store(
-            &mut self.flash,
+            self.flash.map(),
             &self.map_range,
             &mut self.buf,
             commit_key(i),
@@ -355,7 +409,7 @@ impl<F: NorFlash> FlashStore<F> {
 
     fn read_slot(&mut self, i: usize) -> Result<Slot, StoreError> {
         let commit = match fetch(
-            &mut self.flash,
+            self.flash.map(),
             &self.map_range,
             &mut self.buf,
             commit_key(i),
@@ -405,7 +459,7 @@ impl<F: NorFlash> FlashStore<F> {
         for k in 0..c.chunks() {
             let want = chunk.min(len - k * chunk);
             let key = chunk_key(i, c.gen, k);
-            let got = fetch(&mut self.flash, &self.map_range, &mut self.buf, key)?
+            let got = fetch(self.flash.map(), &self.map_range, &mut self.buf, key)?
                 .ok_or(StoreError::Damaged)?;
             let (g, data) = got
                 .split_at_checked(CHUNK_HEAD)
@@ -450,7 +504,7 @@ impl<F: NorFlash> FlashStore<F> {
     }
 
     fn for_each_raw(&mut self, mut f: impl FnMut(&[u8])) -> Result<(), StoreError> {
-        let mut q = queue(&mut self.flash, &self.log_range)?;
+        let mut q = queue(self.flash.log(), &self.log_range)?;
         let mut it = block_on(q.iter()).map_err(ss_err)?;
         loop {
             match block_on(it.next(&mut self.buf)).map_err(ss_err)? {
@@ -466,17 +520,17 @@ impl<F: NorFlash> FlashStore<F> {
     }
 
     /// Give the flash back.
-    pub fn into_flash(self) -> F {
+    pub fn into_flash(self) -> A {
         self.flash
     }
 
     /// The flash, to look at it.
-    pub fn flash(&self) -> &F {
+    pub fn flash(&self) -> &A {
         &self.flash
     }
 
     /// The flash, for tests that set faults on it.
-    pub fn _flash_mut(&mut self) -> &mut F {
+    pub fn _flash_mut(&mut self) -> &mut A {
         &mut self.flash
     }
 
@@ -497,14 +551,14 @@ impl<F: NorFlash> FlashStore<F> {
     fn chunk_len(&self) -> usize {
         // A chunk item (header, key, generation, data, padding) must fit in one page
         // with room for the page markers; half a page leaves room for migration.
-        let w = F::WRITE_SIZE.max(F::READ_SIZE);
-        let room = (F::ERASE_SIZE.saturating_sub(4 * w + 64) / 2) / w * w;
+        let w = A::Map::WRITE_SIZE.max(A::Map::READ_SIZE);
+        let room = (A::Map::ERASE_SIZE.saturating_sub(4 * w + 64) / 2) / w * w;
         CHUNK_BYTES.min(room).max(w)
     }
 
     fn item_bytes(&self, value: usize) -> usize {
-        let w = F::WRITE_SIZE.max(F::READ_SIZE);
-        MapStorage::<u32, Async<'_, F>, NoCache<u32>>::item_overhead_size() as usize
+        let w = A::Map::WRITE_SIZE.max(A::Map::READ_SIZE);
+        MapStorage::<u32, Async<'_, A::Map>, NoCache<u32>>::item_overhead_size() as usize
             + (4 + value).div_ceil(w) * w
     }
 
@@ -541,7 +595,7 @@ impl<F: NorFlash> FlashStore<F> {
             value[CHUNK_HEAD..CHUNK_HEAD + part.len()].copy_from_slice(part);
             let v = &value[..CHUNK_HEAD + part.len()];
             store(
-                &mut self.flash,
+                self.flash.map(),
                 &self.map_range,
                 &mut self.buf,
                 chunk_key(i, gen, k),
@@ -558,7 +612,7 @@ impl<F: NorFlash> FlashStore<F> {
         for k in 0..c.chunks().min(MAX_CHUNKS) {
             let key = chunk_key(i, c.gen, k);
             store(
-                &mut self.flash,
+                self.flash.map(),
                 &self.map_range,
                 &mut self.buf,
                 key,
@@ -620,7 +674,7 @@ impl<F: NorFlash> FlashStore<F> {
     /// Erase the map area (settings and every dataset): the recovery path when
     /// [`Health::map`] is [`AreaState::Unreadable`]. Only on the user's explicit request.
     pub fn erase_datasets(&mut self) -> Result<(), StoreError> {
-        let mut m = map(&mut self.flash, &self.map_range)?;
+        let mut m = map(self.flash.map(), &self.map_range)?;
         block_on(m.erase_all()).map_err(ss_err)?;
         self.boot_map();
         Ok(())
@@ -629,7 +683,7 @@ impl<F: NorFlash> FlashStore<F> {
     /// Erase the log area: the recovery path when [`Health::log`] is
     /// [`AreaState::Unreadable`]. Only on the user's explicit request.
     pub fn erase_log(&mut self) -> Result<(), StoreError> {
-        let mut q = queue(&mut self.flash, &self.log_range)?;
+        let mut q = queue(self.flash.log(), &self.log_range)?;
         block_on(q.erase_all()).map_err(ss_err)?;
         self.boot_log();
         Ok(())
@@ -639,9 +693,9 @@ impl<F: NorFlash> FlashStore<F> {
     /// largest dataset and to move items between pages. An estimate (old tombstones are
     /// not counted): sequential-storage's own full-storage answer has the last word.
     fn free_flash(&self) -> usize {
-        let pages = (self.map_range.end - self.map_range.start) as usize / F::ERASE_SIZE;
-        let w = F::WRITE_SIZE.max(F::READ_SIZE);
-        let page_data = F::ERASE_SIZE.saturating_sub(2 * w);
+        let pages = (self.map_range.end - self.map_range.start) as usize / A::Map::ERASE_SIZE;
+        let w = A::Map::WRITE_SIZE.max(A::Map::READ_SIZE);
+        let page_data = A::Map::ERASE_SIZE.saturating_sub(2 * w);
         let chunk_item = self.item_bytes(CHUNK_HEAD + self.chunk_len());
         // One page stays free for moving items; a page of chunks wastes its remainder.
         let capacity = pages.saturating_sub(1) * (page_data - page_data % chunk_item);
@@ -677,7 +731,7 @@ impl<F: NorFlash> FlashStore<F> {
             bytes: 256,
             max: 256,
         })?;
-        let mut q = queue(&mut self.flash, &self.log_range)?;
+        let mut q = queue(self.flash.log(), &self.log_range)?;
         match block_on(q.push(&bytes[..n], false)).map_err(ss_err) {
             Ok(()) => {}
             Err(StoreError::Full { .. }) => return Err(StoreError::LogFull),
@@ -695,7 +749,7 @@ impl<F: NorFlash> FlashStore<F> {
 
     /// Bytes left in the log area.
     pub fn log_free(&mut self) -> Result<u32, StoreError> {
-        let mut q = queue(&mut self.flash, &self.log_range)?;
+        let mut q = queue(self.flash.log(), &self.log_range)?;
         block_on(q.space_left()).map_err(ss_err)
     }
 
@@ -718,12 +772,15 @@ impl<F: NorFlash> FlashStore<F> {
     }
 }
 
-impl<F: MultiwriteNorFlash> FlashStore<F> {
+impl<A: Areas> FlashStore<A>
+where
+    A::Log: MultiwriteNorFlash,
+{
     /// Drop the `n` oldest log entries (the user asked for it, having exported them);
     /// how many were dropped. Their space comes back a whole erase page at a time, once
     /// every entry on the page is gone.
     pub fn log_drop_oldest(&mut self, n: u32) -> Result<u32, StoreError> {
-        let mut q = queue(&mut self.flash, &self.log_range)?;
+        let mut q = queue(self.flash.log(), &self.log_range)?;
         let mut dropped = 0;
         while dropped < n {
             match block_on(q.pop(&mut self.buf)).map_err(ss_err)? {
@@ -736,7 +793,7 @@ impl<F: MultiwriteNorFlash> FlashStore<F> {
     }
 }
 
-impl<F: NorFlash> Storage for FlashStore<F> {
+impl<A: Areas> Storage for FlashStore<A> {
     type Error = StoreError;
 
     fn log_len(&mut self) -> u32 {
@@ -775,7 +832,7 @@ impl<F: NorFlash> Storage for FlashStore<F> {
             .encode(&mut bytes)
             .map_err(|_| StoreError::Damaged)?;
         store(
-            &mut self.flash,
+            self.flash.map(),
             &self.map_range,
             &mut self.buf,
             SETTINGS_KEY,
@@ -882,7 +939,7 @@ impl<F: NorFlash> Storage for FlashStore<F> {
         let mut t = [TOMBSTONE; 5];
         t[1..].copy_from_slice(&c.gen.to_le_bytes());
         store(
-            &mut self.flash,
+            self.flash.map(),
             &self.map_range,
             &mut self.buf,
             commit_key(i),

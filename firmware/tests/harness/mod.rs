@@ -5,7 +5,7 @@
 use std::collections::BTreeMap;
 
 use leeward_firmware::flash::sim::{Cut, SimFlash};
-use leeward_firmware::flash::FlashStore;
+use leeward_firmware::flash::{Areas, FlashStore};
 use leeward_firmware::records::{LogEntry, LogTask};
 use leeward_firmware::settings::{HeightUnit, Settings, WindUnit};
 use leeward_firmware::storage::{DataKind, Storage, StoreError};
@@ -158,11 +158,10 @@ pub fn log_entry(mark: u32) -> LogEntry {
 
 /// Apply `op` to the store; whether it was acknowledged (Ok), and the model updated
 /// if so.
-pub fn apply<F: embedded_storage::nor_flash::MultiwriteNorFlash>(
-    st: &mut FlashStore<F>,
-    m: &mut Model,
-    op: &Op,
-) -> Result<(), StoreError> {
+pub fn apply<A: Areas>(st: &mut FlashStore<A>, m: &mut Model, op: &Op) -> Result<(), StoreError>
+where
+    A::Log: embedded_storage::nor_flash::MultiwriteNorFlash,
+{
     match op {
         Op::Put(k, n, d) => {
             st.put(*k, n, d)?;
@@ -199,9 +198,7 @@ pub fn apply<F: embedded_storage::nor_flash::MultiwriteNorFlash>(
 }
 
 /// What the store holds, read back through its public interface.
-pub fn read_back<F: embedded_storage::nor_flash::NorFlash>(
-    st: &mut FlashStore<F>,
-) -> Result<Model, String> {
+pub fn read_back<A: Areas>(st: &mut FlashStore<A>) -> Result<Model, String> {
     let mut out = Model {
         settings: st.load_settings(),
         ..Model::default()
