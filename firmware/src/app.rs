@@ -106,13 +106,76 @@ pub const HOME_ROWS: [(&str, &str); 8] = [
 ];
 
 /// Rows of a dataset's menu in the Data task.
-pub const DATA_ROWS: [(&str, &str); 3] = [("View", "summary"), ("Rename", ""), ("Delete", "")];
+pub const DATA_ROWS: [(&str, &str); 4] = [
+    ("View", "summary"),
+    ("Rename", ""),
+    ("Delete", ""),
+    ("Use", "in its task"),
+];
+
+/// The most bytes of a stored sounding the device reads (the record of a
+/// [`crate::sounding::DEVICE_LEVELS`]-level sounding is under 7 KB; the rest leaves room
+/// for what a later firmware may add after it). The buffer is on the stack while the
+/// sounding is read.
+pub const MAX_SOUNDING_READ: usize = 10 * 1024;
 
 /// The name the demo station set is stored under on first power-on.
 pub const DEMO_SET_NAME: &str = "DEMO";
 
 /// Rows of the Column menu.
 pub const COLUMN_ROWS: [(&str, &str); 2] = [("Stretch", "zeta at end"), ("Depth", "for a zeta")];
+
+/// A stored ridge profile in use in the Ridge crossing task.
+#[derive(Debug, Clone, PartialEq)]
+pub struct StoredRidge {
+    /// Its dataset name.
+    pub name: DataName,
+    /// The cross-section the crossing uses.
+    pub profile: leeward_core::crossing::Profile,
+    /// Crest, plain and half-width, m, as put in the form.
+    pub shown_m: [f64; 3],
+}
+
+/// Crest, plain and half-width of a tabulated cross-section, m: its highest and lowest
+/// point, and half the width over which it stands above the height halfway between
+/// them (linear between the points), at least 1 km (the form's least half-width).
+pub fn table_figures(profile: &leeward_core::crossing::Profile) -> [f64; 3] {
+    use leeward_core::crossing::Profile as P;
+    match profile {
+        P::Bell {
+            base_m,
+            crest_m,
+            half_width_m,
+        } => [*crest_m, *base_m, *half_width_m],
+        P::Flat { height_m } => [*height_m, *height_m, 1000.0],
+        P::Table(pts) => {
+            let crest = pts.iter().map(|p| p.height_m).fold(f64::MIN, f64::max);
+            let plain = pts.iter().map(|p| p.height_m).fold(f64::MAX, f64::min);
+            let half = 0.5 * (crest + plain);
+            // Where the profile crosses the half height, first rising and last falling.
+            let cross = |a: &leeward_core::crossing::ProfilePoint,
+                         b: &leeward_core::crossing::ProfilePoint| {
+                let t = (half - a.height_m) / (b.height_m - a.height_m);
+                a.distance_m + t * (b.distance_m - a.distance_m)
+            };
+            let mut left = None;
+            let mut right = None;
+            for w in pts.windows(2) {
+                let (a, b) = (&w[0], &w[1]);
+                if a.height_m < half && b.height_m >= half && left.is_none() {
+                    left = Some(cross(a, b));
+                }
+                if a.height_m >= half && b.height_m < half {
+                    right = Some(cross(a, b));
+                }
+            }
+            let first = pts.first().map_or(0.0, |p| p.distance_m);
+            let last = pts.last().map_or(0.0, |p| p.distance_m);
+            let width = right.unwrap_or(last) - left.unwrap_or(first);
+            [crest, plain, (0.5 * width).max(1000.0)]
+        }
+    }
+}
 
 /// Which screen is showing.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -197,6 +260,12 @@ pub struct App {
     network_used: Network,
     residual_first: u8,
     sounding: Option<SoundingView>,
+    /// The sounding shown is a stored one (its dataset name), not the demo ascent.
+    sounding_from: Option<DataName>,
+    /// A stored tabulated ridge the crossing uses instead of the form's bell, with the
+    /// crest, plain and half-width it put in the form (editing any of them brings the
+    /// bell back).
+    ridge_table: Option<StoredRidge>,
     crossing: Form<10>,
     crossing_view: Option<CrossingView>,
     /// Lid and N in the crossing form came from the sounding summary.
@@ -286,6 +355,8 @@ impl App {
             network_used: Network::new(),
             residual_first: 0,
             sounding: None,
+            sounding_from: None,
+            ridge_table: None,
             settings,
             screen: Screen::Home,
             home: List::default(),
@@ -398,6 +469,9 @@ impl App {
                     if self.set_name == from {
                         self.set_name = to.clone();
                     }
+                    if self.sounding_from.as_ref() == Some(&from) {
+                        self.sounding_from = Some(to.clone());
+                    }
                     self.data_name = to;
                     self.screen = Screen::DataItem;
                 }
@@ -435,6 +509,25 @@ impl App {
                     Err(e) => self.store_notice("Cannot save", e),
                 }
             }
+            StoreOp::Use(name) => {
+                let kind = self.catalog.iter().find(|d| d.name == name).map(|d| d.kind);
+                match kind {
+                    Some(DataKind::Stations) => self.run(StoreOp::LoadStations(name), storage),
+                    Some(DataKind::Sounding) => self.use_sounding(name, storage),
+                    Some(DataKind::Ridge) => self.use_ridge(name, storage),
+                    Some(k) => {
+                        self.notice = Some(Notice {
+                            heading: "Not used here",
+                            text: crate::text::message(format_args!(
+                                "A {} is kept for the laptop: the device uses station sets \
+                                 (Network), soundings (Sounding) and ridges (Ridge crossing).",
+                                k.word()
+                            )),
+                        })
+                    }
+                    None => self.store_notice("Cannot read", StoreError::NotFound),
+                }
+            }
             StoreOp::LoadStations(name) => {
                 let got = storage.get(&name, &mut buf).and_then(|(kind, n)| {
                     if kind == DataKind::Stations {
@@ -454,6 +547,118 @@ impl App {
                 }
             }
         }
+    }
+
+    /// Make stored sounding `name` the Sounding task's current one and show its summary.
+    fn use_sounding<S: Storage>(&mut self, name: DataName, storage: &mut S) {
+        let mut buf = [0u8; MAX_SOUNDING_READ];
+        let n = match storage.get(&name, &mut buf) {
+            Ok((DataKind::Sounding, n)) => n,
+            Ok(_) => return self.store_notice("Cannot read", StoreError::NotFound),
+            Err(e) => return self.store_notice("Cannot read", e),
+        };
+        match crate::sounding::stored_view(buf.get(..n).unwrap_or(&[])) {
+            Ok(v) => {
+                self.sounding = Some(v);
+                self.sounding_from = Some(name);
+                // The crossing form takes its lid and N from this sounding next time.
+                self.crossing_seeded = false;
+                self.screen = Screen::SoundingResult(0);
+            }
+            Err(crate::sounding::StoredError::Load(e)) => {
+                self.notice = Some(Notice {
+                    heading: "Cannot read",
+                    text: crate::text::message(format_args!("{name}: {e}.")),
+                })
+            }
+            Err(crate::sounding::StoredError::Core(e)) => {
+                self.notice = Some(Notice {
+                    heading: "Cannot compute",
+                    text: pages::error_words(&e),
+                })
+            }
+        }
+    }
+
+    /// Put stored ridge `name` in the Ridge crossing form and open it.
+    fn use_ridge<S: Storage>(&mut self, name: DataName, storage: &mut S) {
+        use crate::records::Record;
+        let mut buf = [0u8; MAX_STATION_SET_BYTES];
+        let got = match storage.get(&name, &mut buf) {
+            Ok((DataKind::Ridge, n)) => {
+                leeward_core::crossing::Ridge::decode(buf.get(..n).unwrap_or(&[]))
+                    .map_err(|e| crate::text::message(format_args!("{name}: {e}.")))
+            }
+            Ok(_) => return self.store_notice("Cannot read", StoreError::NotFound),
+            Err(e) => return self.store_notice("Cannot read", e),
+        };
+        let ridge = match got {
+            Ok(r) => r,
+            Err(text) => {
+                self.notice = Some(Notice {
+                    heading: "Cannot read",
+                    text,
+                });
+                return;
+            }
+        };
+        let shown = table_figures(&ridge.profile);
+        let s = self.settings;
+        let values = [
+            (4, shown[0]),
+            (5, shown[1]),
+            (6, shown[2]),
+            (7, {
+                let a = libm::fmod(ridge.axis_deg, 360.0);
+                if a < 0.0 {
+                    a + 360.0
+                } else {
+                    a
+                }
+            }),
+            (8, ridge.anchor.lat_deg),
+            (9, ridge.anchor.lon_deg),
+        ];
+        for (i, v) in values {
+            self.crossing.fields[i] = Field::with_value(&CROSSING_FIELDS[i], v, &s);
+        }
+        // A bell is the form's own shape; any other is kept and used while the form still
+        // shows its figures.
+        self.ridge_table = match ridge.profile {
+            leeward_core::crossing::Profile::Bell { .. } => None,
+            profile => Some(StoredRidge {
+                name,
+                profile,
+                shown_m: shown,
+            }),
+        };
+        // The form opens at its top, on the first of the figures it received.
+        self.crossing.sel = 0;
+        self.crossing.editing = false;
+        self.enter_crossing();
+        self.screen = Screen::CrossingForm;
+    }
+
+    /// The stored ridge profile the crossing uses instead of the form's bell, if any.
+    pub fn ridge_table(&self) -> Option<&StoredRidge> {
+        self.ridge_table.as_ref()
+    }
+
+    /// Whether the crossing form's crest, plain and half-width (SI values `v`) are still
+    /// those a stored table put there (to the display's rounding: 1 m, or a thousandth
+    /// of the half-width).
+    fn table_in_force(&self, v: &[f64; 10]) -> Option<&StoredRidge> {
+        let t = self.ridge_table.as_ref()?;
+        let near = |a: f64, b: f64, tol: f64| (a - b).abs() <= tol;
+        (near(v[4], t.shown_m[0], 1.0)
+            && near(v[5], t.shown_m[1], 1.0)
+            && near(v[6], t.shown_m[2], 1.0 + 1e-3 * t.shown_m[2]))
+        .then_some(t)
+    }
+
+    /// The stored sounding the Sounding task shows (`None`: the demo ascent).
+    pub fn sounding_source(&self) -> Option<&DataName> {
+        self.sounding_from.as_ref()
     }
 
     /// The store's list as last read.
@@ -555,20 +760,13 @@ impl App {
                         1 => Screen::ColumnMenu,
                         2 => Screen::NetworkList,
                         3 => {
-                            // The sounding is summarised on entry; a failure is a notice
-                            // over the home menu.
-                            match crate::sounding::demo_view() {
-                                Ok(v) => {
-                                    self.sounding = Some(v);
-                                    Screen::SoundingResult(0)
-                                }
-                                Err(e) => {
-                                    self.notice = Some(Notice {
-                                        heading: "Cannot compute",
-                                        text: pages::error_words(&e),
-                                    });
-                                    Screen::Home
-                                }
+                            // A stored sounding chosen in the Data task stays the current
+                            // one; otherwise the demo ascent is summarised on entry (a
+                            // failure is a notice over the home menu).
+                            if self.sounding_from.is_some() && self.sounding.is_some() {
+                                Screen::SoundingResult(0)
+                            } else {
+                                self.open_demo_sounding()
                             }
                         }
                         4 => {
@@ -692,6 +890,25 @@ impl App {
         }
     }
 
+    /// Summarise the demo ascent for the Sounding task: its first page, or a notice over
+    /// the home menu.
+    fn open_demo_sounding(&mut self) -> Screen {
+        match crate::sounding::demo_view() {
+            Ok(v) => {
+                self.sounding = Some(v);
+                self.sounding_from = None;
+                Screen::SoundingResult(0)
+            }
+            Err(e) => {
+                self.notice = Some(Notice {
+                    heading: "Cannot compute",
+                    text: pages::error_words(&e),
+                });
+                Screen::Home
+            }
+        }
+    }
+
     /// Entering the Ridge crossing form: the lid and N come from the sounding summary the
     /// first time; the wind from the newest Network result whenever there is a new one
     /// (otherwise the form keeps what the user typed).
@@ -700,7 +917,11 @@ impl App {
         if !self.crossing_seeded {
             self.crossing_seeded = true;
             // A summary that cannot give a figure leaves the demo value in its field.
-            if let Ok(v) = crate::sounding::demo_view() {
+            let current = match (&self.sounding_from, &self.sounding) {
+                (Some(_), Some(v)) => Ok(v.clone()),
+                _ => crate::sounding::demo_view(),
+            };
+            if let Ok(v) = current {
                 if let Ok(l) = v.lid {
                     self.crossing.fields[2] =
                         Field::with_value(&CROSSING_FIELDS[2], l.height_m, &s);
@@ -778,7 +999,11 @@ impl App {
                 })
             }),
             Task::Crossing => self.crossing.values(&CROSSING_FIELDS, &s).ok().map(|v| {
-                crossing::compute(crossing::input(&v)).map(|r| {
+                let mut input = crossing::input(&v);
+                if let Some(t) = self.table_in_force(&v) {
+                    input.ridge.profile = t.profile.clone();
+                }
+                crossing::compute(input).map(|r| {
                     self.crossing_view = Some(r);
                     Screen::CrossingResult(0)
                 })
@@ -1020,9 +1245,13 @@ impl App {
                     self.screen = Screen::DataRename;
                     Effect::Redraw
                 }
-                ListOutcome::Chosen(_) => {
+                ListOutcome::Chosen(2) => {
                     self.screen = Screen::DataDelete;
                     Effect::Redraw
+                }
+                ListOutcome::Chosen(_) => {
+                    self.pending = Some(StoreOp::Use(self.data_name.clone()));
+                    Effect::Store
                 }
                 ListOutcome::Back | ListOutcome::Previous(_) => {
                     self.screen = Screen::DataList;
@@ -1318,12 +1547,15 @@ impl App {
                 hint("LEFT/RIGHT page   BACK home")
             }
             Screen::CrossingForm => {
-                let tag = if self.crossing_wind_from == 0 {
-                    "wind: demo"
-                } else {
-                    "wind: network"
+                let tag: Line = match self.crossing.values(&CROSSING_FIELDS, s) {
+                    Ok(v) if self.table_in_force(&v).is_some() => line(format_args!(
+                        "ridge {}",
+                        self.ridge_table.as_ref().map_or("", |t| t.name.as_str())
+                    )),
+                    _ if self.crossing_wind_from == 0 => line(format_args!("wind: demo")),
+                    _ => line(format_args!("wind: network")),
                 };
-                p.title("Ridge crossing", tag)?;
+                p.title("Ridge crossing", &tag)?;
                 self.crossing.draw_scrolled(&mut p, &CROSSING_FIELDS, s)?;
                 form_hints(&self.crossing, &CROSSING_FIELDS, s)
             }

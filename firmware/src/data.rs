@@ -34,6 +34,8 @@ pub enum StoreOp {
     SaveStations(DataName),
     /// Replace the Network task's stations with a stored set.
     LoadStations(DataName),
+    /// Use a dataset in its task: a station set in Network, a sounding in Sounding.
+    Use(DataName),
 }
 
 /// Figures of a stored station set.
@@ -83,7 +85,7 @@ impl StationSummary {
 pub struct DataSummary {
     /// The dataset as listed.
     pub info: DataInfo,
-    /// A station set's figures (a sounding's come with the sounding storage).
+    /// A station set's figures (a sounding is summarised by Use, in its task).
     pub stations: Option<StationSummary>,
 }
 
@@ -138,7 +140,7 @@ pub fn summary_page(v: &DataSummary, s: &Settings) -> Page {
             p.unit = line(format_args!("bytes"));
             if kind == DataKind::Sounding {
                 p.note = Some(crate::text::message(format_args!(
-                    "A sounding's summary comes with the sounding storage."
+                    "Use puts it in the Sounding task, summarised against the Tessel Range."
                 )));
             }
         }

@@ -255,6 +255,16 @@ impl Record for Profile {
     }
 }
 
+/// The body of a sounding (Profile) record at the start of `bytes`, after its tag and
+/// version have been checked: for a reader that takes its levels one by one
+/// ([`crate::sounding::load_profile`]).
+pub fn open_profile(bytes: &[u8]) -> Result<&[u8], RecordError> {
+    match open(<Profile as Record>::TAG, bytes)? {
+        (1, body) => Ok(body),
+        _ => Err(RecordError::Malformed),
+    }
+}
+
 impl Record for Ridge {
     const TAG: u8 = 4;
     fn encode(&self, buf: &mut [u8]) -> Result<usize, RecordError> {

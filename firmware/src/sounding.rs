@@ -7,6 +7,7 @@
 //! took over 100 KB of stack.
 
 use crate::plot::{dashed_row, inside, polyline, scale_rows, Axis};
+use crate::records::RecordError;
 use crate::settings::Settings;
 use crate::text::line;
 use crate::ui::{Align, Font, Inspect, Painter, BODY_TOP, BODY_W, LINE_H, MARGIN};
@@ -19,7 +20,7 @@ use leeward_core::sounding::lid::Lid;
 use leeward_core::sounding::ridge_flow::{RidgeCheck, RidgeFlow};
 use leeward_core::sounding::stability::Tropopauses;
 use leeward_core::sounding::summary::{summarise_into, Summary, SummaryOptions};
-use leeward_core::sounding::{Profile, StationInfo};
+use leeward_core::sounding::{Level, Profile, StationInfo};
 use leeward_core::{Error, Result};
 
 /// What the Sounding pages show, each part as the core returned it.
@@ -175,6 +176,95 @@ pub fn demo_view() -> Result<SoundingView> {
     Ok(SoundingView::of(&profile, &summary))
 }
 
+/// Why a stored sounding could not be read into the device's profile.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum LoadError {
+    /// The bytes are not a sounding record this firmware reads.
+    Record(RecordError),
+    /// More levels than the device holds.
+    TooManyLevels {
+        /// Levels in the stored sounding.
+        levels: u32,
+        /// Levels the device holds ([`DEVICE_LEVELS`]).
+        capacity: u16,
+    },
+}
+
+impl core::fmt::Display for LoadError {
+    fn fmt(&self, f: &mut core::fmt::Formatter<'_>) -> core::fmt::Result {
+        match *self {
+            LoadError::Record(e) => write!(f, "{e}"),
+            LoadError::TooManyLevels { levels, capacity } => write!(
+                f,
+                "the sounding has {levels} levels; the device holds {capacity}: thin it on the laptop"
+            ),
+        }
+    }
+}
+
+impl From<RecordError> for LoadError {
+    fn from(e: RecordError) -> Self {
+        LoadError::Record(e)
+    }
+}
+
+/// Read the sounding record at the start of a stored Sounding dataset into `out`, level
+/// by level, each checked as when typed in (`Profile::push`), with no second copy of the
+/// profile on the stack. Bytes after the record (a later firmware's additions) are left
+/// alone. On an error `out` holds no levels.
+pub fn load_profile<const N: usize>(
+    bytes: &[u8],
+    out: &mut Profile<N>,
+) -> core::result::Result<(), LoadError> {
+    out.reset(StationInfo::default());
+    let body = crate::records::open_profile(bytes)?;
+    let (station, rest) =
+        postcard::take_from_bytes::<StationInfo>(body).map_err(|_| RecordError::Malformed)?;
+    let (count, mut rest) =
+        postcard::take_from_bytes::<u32>(rest).map_err(|_| RecordError::Malformed)?;
+    if count as usize > N {
+        return Err(LoadError::TooManyLevels {
+            levels: count,
+            capacity: N.min(u16::MAX as usize) as u16,
+        });
+    }
+    out.reset(station);
+    for _ in 0..count {
+        let next = postcard::take_from_bytes::<Level>(rest)
+            .map_err(|_| RecordError::Malformed)
+            .and_then(|(level, more)| {
+                out.push(level).map_err(|_| RecordError::Invalid)?;
+                Ok(more)
+            });
+        match next {
+            Ok(more) => rest = more,
+            Err(e) => {
+                out.reset(StationInfo::default());
+                return Err(e.into());
+            }
+        }
+    }
+    Ok(())
+}
+
+/// Summarise a stored sounding (its record in `bytes`) against the demo ridge.
+pub fn stored_view(bytes: &[u8]) -> core::result::Result<SoundingView, StoredError> {
+    let mut profile = DeviceProfile::empty(StationInfo::default());
+    load_profile(bytes, &mut profile).map_err(StoredError::Load)?;
+    let mut summary = Summary::empty();
+    summarise_into(&profile, &demo_options(), &mut summary).map_err(StoredError::Core)?;
+    Ok(SoundingView::of(&profile, &summary))
+}
+
+/// Why a stored sounding gave no summary.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum StoredError {
+    /// It could not be read.
+    Load(LoadError),
+    /// The core could not summarise it.
+    Core(Error),
+}
+
 /// The profile plot's box, below two lines of scales.
 pub const PROFILE_BOX: Rectangle = Rectangle::new(
     Point::new(MARGIN, BODY_TOP + 2 * LINE_H + 2),
@@ -328,7 +418,6 @@ where
 mod tests {
     use super::*;
     use leeward_core::sounding::summary::summarise;
-    use leeward_core::sounding::Level;
 
     /// A 256-level ascent: 6.5 K/km (the standard atmosphere's lapse rate, US Standard
     /// Atmosphere 1976) below 11 km, isothermal above, pressure with an 8 km scale height.
@@ -380,6 +469,36 @@ mod tests {
         let p = demo::sounding().unwrap();
         let s = summarise(&p, &demo_options()).unwrap();
         assert_eq!(demo_view().unwrap(), SoundingView::of(&p, &s));
+    }
+
+    #[test]
+    fn a_stored_sounding_is_read_in_place_whole_or_not_at_all() {
+        use crate::records::Record;
+        let p = demo::sounding().unwrap();
+        let mut buf = [0u8; 4096];
+        let n = p.encode(&mut buf).unwrap();
+        let mut out = DeviceProfile::empty(StationInfo::default());
+        load_profile(&buf[..n], &mut out).unwrap();
+        assert_eq!(out.station, p.station);
+        assert_eq!(out.levels(), p.levels());
+        // Bytes after the record (what a later firmware may add) are left alone.
+        buf[n..n + 5].copy_from_slice(&[7, 1, 2, 3, 4]);
+        load_profile(&buf[..n + 5], &mut out).unwrap();
+        assert_eq!(out.levels(), p.levels());
+        // Cut short anywhere: an error, and no levels left behind.
+        for cut in [0, 1, 2, 10, n / 2, n - 1] {
+            assert!(load_profile(&buf[..cut], &mut out).is_err(), "cut at {cut}");
+            assert!(out.is_empty(), "cut at {cut}");
+        }
+        // Another kind of record is refused by its tag.
+        let mut wrong = buf;
+        wrong[0] ^= 0x7F;
+        assert!(matches!(
+            load_profile(&wrong[..n], &mut out),
+            Err(LoadError::Record(RecordError::WrongType { .. }))
+        ));
+        // The summary of the stored record is the demo's.
+        assert_eq!(stored_view(&buf[..n]).unwrap(), demo_view().unwrap());
     }
 
     #[test]

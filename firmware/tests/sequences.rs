@@ -1067,3 +1067,207 @@ fn data_list_view_rename_delete_save_load() {
     assert_eq!(app.notice().map(|n| n.heading), Some("Cannot save"));
     assert_eq!(st.list().len(), 1);
 }
+
+#[test]
+fn data_use_a_stored_sounding_in_the_sounding_task() {
+    use leeward_core::sounding::{Level, Profile, StationInfo};
+    use leeward_firmware::flash::{sim::SimFlash, FlashStore};
+    use leeward_firmware::records::Record;
+    use leeward_firmware::sounding::{demo_options, SoundingView, DEVICE_LEVELS};
+    use leeward_firmware::storage::DataKind;
+    // A flash store of 6 + 2 pages of 16 KiB (the in-memory store is too small for the
+    // long sounding below).
+    const PAGE: usize = 16 * 1024;
+    let flash: SimFlash<Vec<u8>, 4, PAGE> = SimFlash::new(vec![0xFF; 8 * PAGE], 1);
+    let page = PAGE as u32;
+    let mut st = FlashStore::open(flash, 0..6 * page, 6 * page..8 * page).unwrap();
+    let mut app = App::power_on(&mut st);
+    // A sounding other than the demo's: the demo ascent 3 K colder, under another name.
+    let demo_p = demo::sounding().unwrap();
+    let mut station = demo_p.station.clone();
+    station.id = "ALT".try_into().unwrap();
+    let mut cold = Profile::new(station);
+    for l in demo_p.levels() {
+        cold.push(Level {
+            temperature_k: l.temperature_k.map(|t| t - 3.0),
+            dewpoint_k: l.dewpoint_k.map(|t| t - 3.0),
+            ..*l
+        })
+        .unwrap();
+    }
+    let mut buf = vec![0u8; 16 * 1024];
+    let n = cold.encode(&mut buf).unwrap();
+    st.put(DataKind::Sounding, "ALT", &buf[..n]).unwrap();
+    // 200 levels: more than the device holds.
+    let mut long = Profile::new(StationInfo::default());
+    for i in 0..200 {
+        let z = i as f64 * 80.0;
+        long.push(Level {
+            height_m: Some(z),
+            temperature_k: Some(288.15 - 0.0065 * z.min(11_000.0)),
+            ..Level::at_pressure(101_325.0 * (-z / 8000.0).exp())
+        })
+        .unwrap();
+    }
+    let n = long.encode(&mut buf).unwrap();
+    st.put(DataKind::Sounding, "LONG", &buf[..n]).unwrap();
+    // As after a push from the laptop: the app reads the store's list again.
+    app.open_store(&mut st);
+    let at = |app: &App, name: &str| app.catalog().iter().position(|d| d.name == name).unwrap();
+
+    // Home → Data → ALT → Use (the fourth row).
+    press_stored(&mut app, &mut st, &[Up, Up, Up, Ok]);
+    let mut keys = vec![Down; at(&app, "ALT")];
+    keys.extend([Ok, Down, Down, Down, Ok]);
+    press_stored(&mut app, &mut st, &keys);
+    assert_eq!(
+        app.screen(),
+        Screen::SoundingResult(0),
+        "{:?}",
+        app.notice()
+    );
+    let truth = summarise(&cold, &demo_options()).unwrap();
+    assert_eq!(app.sounding(), Some(&SoundingView::of(&cold, &truth)));
+    assert_eq!(app.sounding_source().map(|n| n.as_str()), Some("ALT"));
+    // The colder ascent's figures on the screen, not the demo's.
+    let shot = Shot::of(&app);
+    shot.assert_clean("stored sounding column");
+    let tp = truth.tropopauses.first.unwrap();
+    assert!(agrees(&shot.figure(), tp.height_m), "{}", shot.figure());
+    assert!(agrees(
+        &shot.value_of("bulk N to lid"),
+        truth.bulk_n_per_s.unwrap()
+    ));
+    // It stays the current sounding when the task is opened again from home.
+    // (The home menu keeps its row: Data, two below Sounding.)
+    press_stored(&mut app, &mut st, &[Menu, Up, Up, Ok]);
+    assert_eq!(app.screen(), Screen::SoundingResult(0));
+    assert_eq!(app.sounding_source().map(|n| n.as_str()), Some("ALT"));
+
+    // A sounding longer than the device holds is refused with both counts, and the
+    // current sounding is kept.
+    press_stored(&mut app, &mut st, &[Menu, Down, Down, Ok]);
+    assert_eq!(app.screen(), Screen::DataList);
+    let mut keys = vec![Down; at(&app, "LONG")];
+    keys.extend([Ok, Down, Down, Down, Ok]);
+    press_stored(&mut app, &mut st, &keys);
+    let notice = app.notice().expect("a notice");
+    assert_eq!(notice.heading, "Cannot read");
+    let words = notice.text.as_str();
+    assert!(
+        words.contains("200 levels") && words.contains(&DEVICE_LEVELS.to_string()),
+        "{words}"
+    );
+    assert_eq!(app.sounding_source().map(|n| n.as_str()), Some("ALT"));
+
+    // A station set is used in the Network task.
+    press_stored(&mut app, &mut st, &[Back]);
+    assert!(app.notice().is_none());
+    let mut keys = vec![Menu, Ok];
+    keys.extend(vec![Down; at(&app, "DEMO")]);
+    keys.extend([Ok, Down, Down, Down, Ok]);
+    press_stored(&mut app, &mut st, &keys);
+    assert_eq!(app.screen(), Screen::NetworkList, "{:?}", app.notice());
+}
+
+#[test]
+fn data_use_a_stored_ridge_in_the_crossing_task() {
+    use leeward_core::crossing::{Profile as Terrain, ProfilePoint, Ridge};
+    use leeward_firmware::records::Record;
+    use leeward_firmware::storage::DataKind;
+    let mut st = MemStorage::new();
+    let mut app = App::power_on(&mut st);
+    // A tabulated cross-section the bell cannot be: a plateau between steep flanks, on the
+    // demo ridge's axis.
+    let (plain, crest) = (demo::PLAIN_M, demo::CREST_M);
+    let mut pts = heapless::Vec::new();
+    for (d_km, h) in [
+        (-200.0, plain),
+        (-40.0, plain),
+        (-25.0, crest),
+        (25.0, crest),
+        (40.0, plain),
+        (200.0, plain),
+    ] {
+        pts.push(ProfilePoint {
+            distance_m: d_km * 1000.0,
+            height_m: h,
+        })
+        .unwrap();
+    }
+    let table = Ridge {
+        profile: Terrain::Table(pts),
+        ..demo::ridge()
+    };
+    let bell = Ridge {
+        profile: Terrain::Bell {
+            base_m: 500.0,
+            crest_m: 2200.0,
+            half_width_m: 40_000.0,
+        },
+        ..demo::ridge()
+    };
+    let mut buf = [0u8; 2048];
+    for (name, r) in [("MESA", &table), ("BELL", &bell)] {
+        let n = r.encode(&mut buf).unwrap();
+        st.put(DataKind::Ridge, name, &buf[..n]).unwrap();
+    }
+    app.open_store(&mut st);
+    let at = |app: &App, name: &str| app.catalog().iter().position(|d| d.name == name).unwrap();
+    let use_keys = |app: &App, name: &str| {
+        let mut k = vec![Menu, Digit(6), Ok]; // Data is the sixth row
+        k.extend(vec![Down; at(app, name)]);
+        k.extend([Ok, Down, Down, Down, Ok]);
+        k
+    };
+
+    // Data → MESA → Use: the crossing form, named after the ridge, with its figures.
+    let keys = use_keys(&app, "MESA");
+    press_stored(&mut app, &mut st, &keys);
+    assert_eq!(app.screen(), Screen::CrossingForm, "{:?}", app.notice());
+    let shot = Shot::of(&app);
+    shot.assert_clean("crossing form with a stored ridge");
+    assert!(shot.has("ridge MESA"), "{}", shot.dump());
+    assert!(agrees(&shot.value_of("Crest height"), crest));
+    assert!(agrees(&shot.value_of("Plain height"), plain));
+    // Half the width above the half height: 25 + 7.5 km either side of the axis.
+    assert!(
+        agrees(&shot.value_of("Half-width"), 32_500.0),
+        "{}",
+        shot.dump()
+    );
+    // Compute: the core ran the table, and the pages show the core's answer for it.
+    press_stored(&mut app, &mut st, &[Up, Ok]);
+    let input = app.crossing_result().expect("a result").input.clone();
+    assert_eq!(input.ridge.profile, table.profile);
+    check_crossing_pages(&mut app, &input, "stored table ridge");
+
+    // Typing another crest brings back the form's bell (the pages' check ends on the
+    // form, on its Compute row).
+    assert_eq!(app.screen(), Screen::CrossingForm);
+    press_stored(&mut app, &mut st, &[Up; 6]);
+    press_stored(&mut app, &mut st, &enter("2700"));
+    // (OK moves on to the next field: the Compute row is five below.)
+    press_stored(&mut app, &mut st, &[Down; 5]);
+    assert!(
+        !Shot::of(&app).has("ridge MESA"),
+        "{}",
+        Shot::of(&app).dump()
+    );
+    press_stored(&mut app, &mut st, &[Ok]);
+    let input = app.crossing_result().expect("a result").input.clone();
+    assert!(
+        matches!(input.ridge.profile, Terrain::Bell { crest_m, .. } if (crest_m - 2700.0).abs() < 1e-9),
+        "{:?}",
+        input.ridge.profile
+    );
+
+    // A stored bell is written into the form and computed as the form's own.
+    let keys = use_keys(&app, "BELL");
+    press_stored(&mut app, &mut st, &keys);
+    assert_eq!(app.screen(), Screen::CrossingForm, "{:?}", app.notice());
+    assert!(app.ridge_table().is_none());
+    press_stored(&mut app, &mut st, &[Up, Ok]);
+    let input = app.crossing_result().expect("a result").input.clone();
+    assert_eq!(input.ridge.profile, bell.profile);
+}

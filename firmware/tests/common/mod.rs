@@ -223,7 +223,11 @@ pub fn press(app: &mut App, keys: &[Key]) {
 }
 
 /// Press keys, carrying out each effect against the store as the board's loop does.
-pub fn press_stored(app: &mut App, st: &mut leeward_firmware::storage::MemStorage, keys: &[Key]) {
+pub fn press_stored<S>(app: &mut App, st: &mut S, keys: &[Key])
+where
+    S: leeward_firmware::storage::Storage,
+    S::Error: core::fmt::Debug,
+{
     for &k in keys {
         let e = app.handle(k);
         app.apply(e, st).unwrap();
