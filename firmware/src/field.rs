@@ -357,7 +357,50 @@ fn number(t: &str) -> Result<f64, FieldError> {
     {
         return Err(FieldError::NotANumber);
     }
-    t.parse::<f64>().map_err(|_| FieldError::NotANumber)
+    decimal(t).ok_or(FieldError::NotANumber)
+}
+
+/// The value of a decimal numeral of digits, at most one point and a leading '-', exactly
+/// as `str::parse::<f64>` gives it, without its 15 KB of code on the board (measured,
+/// docs/board.md). With at most 15 digits the digits form an integer m < 2⁵³ and the
+/// point a power 10ᵏ, k ≤ 15, both exact in f64, so the one correctly rounded division
+/// m / 10ᵏ is the correctly rounded value of the numeral (the exact case of Clinger's
+/// 1990 algorithm). A field holds at most [`FIELD_LEN`] characters; more than 15 digits
+/// are refused (`None`), as is anything else.
+fn decimal(t: &str) -> Option<f64> {
+    const POW10: [f64; 16] = [
+        1.0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15,
+    ];
+    let (negative, body) = match t.strip_prefix('-') {
+        Some(b) => (true, b),
+        None => (false, t),
+    };
+    let mut mantissa: u64 = 0;
+    let mut digits = 0usize;
+    let mut fraction: Option<usize> = None;
+    for b in body.bytes() {
+        match b {
+            b'0'..=b'9' => {
+                digits += 1;
+                if digits > 15 {
+                    return None;
+                }
+                mantissa = mantissa * 10 + u64::from(b - b'0');
+                if let Some(k) = fraction.as_mut() {
+                    *k += 1;
+                }
+            }
+            b'.' if fraction.is_none() => fraction = Some(0),
+            _ => return None,
+        }
+    }
+    if digits == 0 {
+        return None;
+    }
+    let k = fraction.unwrap_or(0);
+    // m < 10¹⁵ < 2⁵³: the conversion is exact.
+    let v = mantissa as f64 / *POW10.get(k)?;
+    Some(if negative { -v } else { v })
 }
 
 fn libm_abs(x: f64) -> f64 {
@@ -389,6 +432,72 @@ pub fn short_number(x: f64, decimals: usize) -> Line {
 
 #[cfg(test)]
 mod tests {
+
+    #[test]
+    fn decimal_is_the_standard_parser_on_every_numeral_a_field_holds() {
+        extern crate std;
+        use std::{format, vec::Vec};
+        // Differential against core's correctly rounded parser (str::parse), on numerals
+        // of the keypad's alphabet up to a field's length: exhaustive on short ones,
+        // random on long ones (a fixed-seed xorshift, so the run repeats).
+        let alphabet = b"0123456789.";
+        let check = |t: &str| {
+            let want = t.parse::<f64>().ok();
+            let got = decimal(t);
+            match (want, got) {
+                (Some(a), Some(b)) => assert_eq!(a.to_bits(), b.to_bits(), "{t}"),
+                (None, None) => {}
+                (a, b) => assert_eq!(a, b, "{t}"),
+            }
+        };
+        let mut buf = Vec::new();
+        for len in 1..=5u32 {
+            for n in 0..11u64.pow(len) {
+                buf.clear();
+                let mut x = n;
+                for _ in 0..len {
+                    buf.push(alphabet[(x % 11) as usize]);
+                    x /= 11;
+                }
+                let t = core::str::from_utf8(&buf).unwrap();
+                check(t);
+                check(&format!("-{t}"));
+            }
+        }
+        let mut r: u64 = 0x9E37_79B9_7F4A_7C15;
+        for _ in 0..200_000 {
+            r ^= r << 13;
+            r ^= r >> 7;
+            r ^= r << 17;
+            let len = 6 + (r % 7) as usize; // 6 to 12 characters
+            buf.clear();
+            let mut x = r >> 8;
+            for _ in 0..len {
+                // Mostly digits, a point now and then.
+                buf.push(if x % 9 == 0 {
+                    b'.'
+                } else {
+                    b'0' + (x % 10) as u8
+                });
+                x /= 7;
+                if x == 0 {
+                    x = r.rotate_left(17);
+                }
+            }
+            check(core::str::from_utf8(&buf).unwrap());
+        }
+        for t in [
+            "9999999999.9",
+            "0.0000000001",
+            "123456789012",
+            "-0",
+            "-.5",
+            "5.",
+            ".",
+        ] {
+            check(t);
+        }
+    }
     use super::*;
     use crate::settings::HeightUnit;
     use crate::settings::LatEntry::{Decimal, DegMin};
