@@ -54,6 +54,7 @@ pub mod data;
 pub mod field;
 pub mod flash;
 pub mod framebuffer;
+pub mod glyphs;
 pub mod key;
 pub mod link;
 pub mod network;

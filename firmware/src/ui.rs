@@ -9,11 +9,10 @@
 //! how the tests find a label running past its box without looking at pixels.
 
 use crate::text::{chars, wrap};
-use embedded_graphics::mono_font::{iso_8859_1, MonoFont, MonoTextStyleBuilder};
+use embedded_graphics::mono_font::{iso_8859_1, MonoFont};
 use embedded_graphics::pixelcolor::BinaryColor;
 use embedded_graphics::prelude::*;
 use embedded_graphics::primitives::{Circle, Line as Segment, PrimitiveStyle, Rectangle};
-use embedded_graphics::text::{Baseline, Text};
 
 /// Screen width, pixels.
 pub const SCREEN_W: u32 = 400;
@@ -59,6 +58,58 @@ fn latin1_index(c: char) -> usize {
         u @ 0xA0..=0xFF => (u - 0xA0) as usize + 96,
         _ => '?' as usize - ' ' as usize,
     }
+}
+
+/// Draw glyph `index` of `font` with its cell's top left at `at`: its ink only, pixel by
+/// pixel at scale 1, in runs of whole blocks at the big figures' scale.
+fn draw_glyph<D: DrawTarget<Color = BinaryColor>>(
+    d: &mut D,
+    font: Font,
+    index: usize,
+    at: Point,
+    color: BinaryColor,
+) -> Result<(), D::Error> {
+    let rows: &[u16] = &match font {
+        Font::Small => {
+            let mut r = [0u16; 20];
+            if let Some(g) = crate::glyphs::SMALL.get(index) {
+                for (o, &m) in r.iter_mut().zip(g.iter()) {
+                    *o = u16::from(m);
+                }
+            }
+            r
+        }
+        Font::Body | Font::Big => crate::glyphs::BODY.get(index).copied().unwrap_or([0; 20]),
+    };
+    let k = font.scale() as i32;
+    if k == 1 {
+        let pixels = rows.iter().enumerate().flat_map(|(y, &mask)| {
+            let mut m = mask;
+            core::iter::from_fn(move || {
+                (m != 0).then(|| {
+                    let x = m.trailing_zeros() as i32;
+                    m &= m - 1;
+                    Pixel(at + Point::new(x, y as i32), color)
+                })
+            })
+        });
+        return d.draw_iter(pixels);
+    }
+    for (y, &mask) in rows.iter().enumerate() {
+        let mut m = mask;
+        while m != 0 {
+            // One run of ink: from the lowest set bit up to the next clear one.
+            let x0 = m.trailing_zeros();
+            let len = (!(m >> x0)).trailing_zeros();
+            m &= !(((1u32 << len) - 1) << x0) as u16;
+            let block = Rectangle::new(
+                at + Point::new(x0 as i32 * k, y as i32 * k),
+                Size::new(len * k as u32, k as u32),
+            );
+            d.fill_solid(&block, color)?;
+        }
+    }
+    Ok(())
 }
 
 /// The 8×13 font with the fast mapping.
@@ -230,23 +281,21 @@ where
         let at = area.top_left + Point::new(dx, dy);
         // Only the glyphs' ink is drawn: the box under the text is already the
         // background (the screen is cleared before each render, an inverted box filled
-        // by the caller). Drawing the background too sent every pixel of every character
-        // cell, four in five of them unchanged.
+        // by the caller). The glyphs come from row tables of the same fonts
+        // (`crate::glyphs`): embedded-graphics' own text drawing visits every pixel of a
+        // character's cell through its image iterators, several times the cost on the
+        // M4F (docs/performance.md). A unit test checks the two draw the same pixels.
         let fg = if inverted { PAPER } else { INK };
-        let style = MonoTextStyleBuilder::new()
-            .font(font.mono())
-            .text_color(fg)
-            .build();
         let mut clipped = self.d.clipped(&area);
-        if font.scale() == 1 {
-            Text::with_baseline(s, at, style, Baseline::Top).draw(&mut clipped)?;
-        } else {
-            let mut big = Scaled {
-                d: &mut clipped,
-                origin: at,
-                k: font.scale() as i32,
-            };
-            Text::with_baseline(s, at, style, Baseline::Top).draw(&mut big)?;
+        let step = font.cell_w() as i32;
+        let right = area.top_left.x + area.size.width as i32;
+        let mut x = at.x;
+        for c in s.chars() {
+            if x >= right {
+                break;
+            }
+            draw_glyph(&mut clipped, font, latin1_index(c), Point::new(x, at.y), fg)?;
+            x += step;
         }
         Ok(())
     }
@@ -307,41 +356,125 @@ where
     }
 }
 
-/// Draws every pixel it is given as a k×k block about `origin`: big figures from the
-/// body font without a second font in flash.
-struct Scaled<'a, D> {
-    d: &'a mut D,
-    origin: Point,
-    k: i32,
-}
-
-impl<D: DrawTarget<Color = BinaryColor>> OriginDimensions for Scaled<'_, D> {
-    fn size(&self) -> Size {
-        self.d.bounding_box().size
-    }
-}
-
-impl<D: DrawTarget<Color = BinaryColor>> DrawTarget for Scaled<'_, D> {
-    type Color = BinaryColor;
-    type Error = D::Error;
-
-    fn draw_iter<It>(&mut self, pixels: It) -> Result<(), Self::Error>
-    where
-        It: IntoIterator<Item = Pixel<Self::Color>>,
-    {
-        for Pixel(p, c) in pixels {
-            let q = self.origin + (p - self.origin) * self.k;
-            let block = Rectangle::new(q, Size::new(self.k as u32, self.k as u32));
-            self.d.fill_solid(&block, c)?;
-        }
-        Ok(())
-    }
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
     use embedded_graphics::mock_display::MockDisplay;
+
+    /// embedded-graphics' text drawing at k×k: how the big figures were drawn before the
+    /// glyph tables, kept as the reference the tables are checked against.
+    struct Scaled<'a, D> {
+        d: &'a mut D,
+        origin: Point,
+        k: i32,
+    }
+
+    impl<D: DrawTarget<Color = BinaryColor>> OriginDimensions for Scaled<'_, D> {
+        fn size(&self) -> Size {
+            self.d.bounding_box().size
+        }
+    }
+
+    impl<D: DrawTarget<Color = BinaryColor>> DrawTarget for Scaled<'_, D> {
+        type Color = BinaryColor;
+        type Error = D::Error;
+
+        fn draw_iter<It>(&mut self, pixels: It) -> Result<(), Self::Error>
+        where
+            It: IntoIterator<Item = Pixel<Self::Color>>,
+        {
+            for Pixel(p, c) in pixels {
+                let q = self.origin + (p - self.origin) * self.k;
+                let block = Rectangle::new(q, Size::new(self.k as u32, self.k as u32));
+                self.d.fill_solid(&block, c)?;
+            }
+            Ok(())
+        }
+    }
+
+    #[test]
+    fn glyph_tables_draw_what_embedded_graphics_draws() {
+        use crate::framebuffer::FrameBuffer;
+        use embedded_graphics::mono_font::MonoTextStyleBuilder;
+        use embedded_graphics::text::{Baseline, Text};
+        // The reference: embedded-graphics' own text, clipped to the box, at the scale.
+        fn reference(fb: &mut FrameBuffer, area: Rectangle, s: &str, font: Font, inverted: bool) {
+            let size = font.measure(s);
+            let dy = ((area.size.height as i32 - size.height as i32) / 2).max(0);
+            let at = area.top_left + Point::new(0, dy);
+            let fg = if inverted { PAPER } else { INK };
+            let style = MonoTextStyleBuilder::new()
+                .font(font.mono())
+                .text_color(fg)
+                .build();
+            let mut clipped = fb.clipped(&area);
+            if font.scale() == 1 {
+                Text::with_baseline(s, at, style, Baseline::Top)
+                    .draw(&mut clipped)
+                    .unwrap();
+            } else {
+                let mut big = Scaled {
+                    d: &mut clipped,
+                    origin: at,
+                    k: font.scale() as i32,
+                };
+                Text::with_baseline(s, at, style, Baseline::Top)
+                    .draw(&mut big)
+                    .unwrap();
+            }
+        }
+        let mut all = heapless::String::<800>::new();
+        for i in 0..crate::glyphs::GLYPHS {
+            let u = if i < 96 { 0x20 + i } else { 0xA0 + i - 96 };
+            let _ = all.push(char::from_u32(u as u32).unwrap());
+        }
+        let chunks: heapless::Vec<&str, 64> = all
+            .char_indices()
+            .step_by(12)
+            .map(|(i, _)| {
+                let end = all[i..]
+                    .char_indices()
+                    .nth(12)
+                    .map_or(all.len(), |(j, _)| i + j);
+                &all[i..end]
+            })
+            .collect();
+        let extra = [
+            "ζ_g ± σ 1.5e-5 /s",
+            "Tessel Col 1850 m",
+            "-140.54°",
+            "",
+            "€ and ✓",
+        ];
+        for font in [Font::Small, Font::Body, Font::Big] {
+            for s in chunks.iter().copied().chain(extra) {
+                for (area, inverted) in [
+                    (Rectangle::new(Point::new(3, 5), Size::new(396, 44)), false),
+                    (Rectangle::new(Point::new(17, 100), Size::new(61, 9)), true),
+                    (
+                        Rectangle::new(Point::new(-6, 200), Size::new(150, 60)),
+                        false,
+                    ),
+                ] {
+                    let mut want = FrameBuffer::new();
+                    let mut got = FrameBuffer::new();
+                    if inverted {
+                        for fb in [&mut want, &mut got] {
+                            fb.fill_solid(&area, INK).unwrap();
+                        }
+                    }
+                    reference(&mut want, area, s, font, inverted);
+                    let mut no = ();
+                    Painter::new(&mut got, &mut no)
+                        .text(area, s, font, Align::Left, inverted)
+                        .unwrap();
+                    for y in 0..crate::framebuffer::HEIGHT {
+                        assert_eq!(want.line(y), got.line(y), "{font:?} {s:?} line {y}");
+                    }
+                }
+            }
+        }
+    }
 
     struct Log(heapless::Vec<bool, 16>);
     impl Inspect for Log {
