@@ -474,7 +474,7 @@ mod tests {
             let mut x = r >> 8;
             for _ in 0..len {
                 // Mostly digits, a point now and then.
-                buf.push(if x % 9 == 0 {
+                buf.push(if x.is_multiple_of(9) {
                     b'.'
                 } else {
                     b'0' + (x % 10) as u8

@@ -11,6 +11,14 @@
 //! | ridge profile | 4 | a [`Ridge`] |
 //! | settings | 5 | the [`Settings`] |
 //! | [`LogEntry`] | 6 | one line of the results log |
+//! | [`SourceText`] | 7 | the text a dataset was pushed as (after a sounding's record) |
+//!
+//! A sounding dataset is its sounding record, optionally followed by a [`SourceText`]
+//! record holding the TEMP report it was decoded from, so that the laptop can have the
+//! report back as it was sent ([`encode_sounding`], [`decode_sounding`]). The device
+//! reads only the leading sounding record ([`Record::decode`] of [`Profile`] stops there);
+//! a dataset without the trailer, as every firmware before this record wrote, is still a
+//! sounding and pulls back as CSV.
 //!
 //! A newer firmware reads what an older one wrote: [`Record::decode`] dispatches on the
 //! stored schema version, and each version a firmware ever wrote keeps its decoder here.
@@ -239,19 +247,33 @@ impl Record for Network {
     }
 }
 
+/// The sounding record at the start of `bytes`, checked, and the bytes after it.
+fn leading_profile(bytes: &[u8]) -> Result<(Profile, &[u8]), RecordError> {
+    let (raw, rest) = match open(Profile::TAG, bytes)? {
+        (1, body) => {
+            postcard::take_from_bytes::<Profile>(body).map_err(|_| RecordError::Malformed)?
+        }
+        // Version 0 was never written: treat as damage.
+        _ => return Err(RecordError::Malformed),
+    };
+    // Rebuild level by level so that every check of typed-in data applies.
+    let mut p = Profile::new(raw.station.clone());
+    for l in raw.levels() {
+        p.push(*l).map_err(|_| RecordError::Invalid)?;
+    }
+    Ok((p, rest))
+}
+
 impl Record for Profile {
     const TAG: u8 = 3;
     fn encode(&self, buf: &mut [u8]) -> Result<usize, RecordError> {
         encode_value(Self::TAG, self, buf)
     }
+    /// Reads the sounding record at the start of `bytes` and ignores what follows it: a
+    /// sounding dataset may carry trailing records (its [`SourceText`]) that the device
+    /// has no use for. [`decode_sounding`] checks the trailer too.
     fn decode(bytes: &[u8]) -> Result<Self, RecordError> {
-        let raw: Profile = decode_v1(Self::TAG, bytes)?;
-        // Rebuild level by level so that every check of typed-in data applies.
-        let mut p = Profile::new(raw.station.clone());
-        for l in raw.levels() {
-            p.push(*l).map_err(|_| RecordError::Invalid)?;
-        }
-        Ok(p)
+        leading_profile(bytes).map(|(p, _)| p)
     }
 }
 
@@ -263,6 +285,66 @@ pub fn open_profile(bytes: &[u8]) -> Result<&[u8], RecordError> {
         (1, body) => Ok(body),
         _ => Err(RecordError::Malformed),
     }
+}
+
+/// The text formats a [`SourceText`] can hold.
+#[non_exhaustive]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub enum SourceFormat {
+    /// A WMO FM 35 TEMP report (parts TTAA, TTBB, …), as the file held it.
+    Temp,
+}
+
+/// The text a dataset was pushed as, kept after its record so that the laptop gets the
+/// same text back. Borrowed: the device never needs to read it.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+pub struct SourceText<'a> {
+    /// What the text is.
+    pub format: SourceFormat,
+    /// The text, byte for byte.
+    pub text: &'a str,
+}
+
+impl<'a> SourceText<'a> {
+    /// The record type's tag.
+    pub const TAG: u8 = 7;
+
+    /// Write the record into `buf`; the length written.
+    pub fn encode(&self, buf: &mut [u8]) -> Result<usize, RecordError> {
+        encode_value(Self::TAG, self, buf)
+    }
+
+    /// Read a source-text record that fills all of `bytes`.
+    pub fn decode(bytes: &'a [u8]) -> Result<Self, RecordError> {
+        decode_v1(Self::TAG, bytes)
+    }
+}
+
+/// Write a sounding dataset: the sounding record, then `source` when given; the length.
+pub fn encode_sounding(
+    profile: &Profile,
+    source: Option<&SourceText<'_>>,
+    buf: &mut [u8],
+) -> Result<usize, RecordError> {
+    let n = profile.encode(buf)?;
+    let Some(src) = source else {
+        return Ok(n);
+    };
+    let rest = buf.get_mut(n..).ok_or(RecordError::BufferTooSmall)?;
+    Ok(n + src.encode(rest)?)
+}
+
+/// Read a sounding dataset: the sounding, and the text it was pushed as if the dataset
+/// keeps it (`None` for a dataset written without one, as by firmware before the
+/// [`SourceText`] record). Anything after the sounding that is not a whole source-text
+/// record is an error.
+pub fn decode_sounding(bytes: &[u8]) -> Result<(Profile, Option<SourceText<'_>>), RecordError> {
+    let (p, rest) = leading_profile(bytes)?;
+    if rest.is_empty() {
+        return Ok((p, None));
+    }
+    Ok((p, Some(SourceText::decode(rest)?)))
 }
 
 impl Record for Ridge {
@@ -305,16 +387,18 @@ impl Record for LogEntry {
 }
 
 /// Decode any record by its tag, checking it; the tag on success. For the fuzz target
-/// and for tools that look at raw flash.
+/// and for tools that look at raw flash. A sounding is checked as a whole dataset
+/// ([`decode_sounding`]): its record and any source text after it.
 pub fn check_any(bytes: &[u8]) -> Result<u8, RecordError> {
     let tag = *bytes.first().ok_or(RecordError::Truncated)?;
     match tag {
         SiteRecord::TAG => SiteRecord::decode(bytes).map(|_| tag),
         Network::TAG => Network::decode(bytes).map(|_| tag),
-        Profile::TAG => Profile::decode(bytes).map(|_| tag),
+        Profile::TAG => decode_sounding(bytes).map(|_| tag),
         Ridge::TAG => Ridge::decode(bytes).map(|_| tag),
         Settings::TAG => Settings::decode(bytes).map(|_| tag),
         LogEntry::TAG => LogEntry::decode(bytes).map(|_| tag),
+        SourceText::TAG => SourceText::decode(bytes).map(|_| tag),
         found => Err(RecordError::WrongType { expected: 0, found }),
     }
 }

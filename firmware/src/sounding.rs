@@ -481,6 +481,16 @@ mod tests {
         load_profile(&buf[..n], &mut out).unwrap();
         assert_eq!(out.station, p.station);
         assert_eq!(out.levels(), p.levels());
+        // A TEMP push keeps its text after the record: the device reads past it.
+        let src = crate::records::SourceText {
+            format: crate::records::SourceFormat::Temp,
+            text: "TTAA 64121 08888 99799 09060 26233 =",
+        };
+        let mut with_text = [0u8; 4096];
+        let m = crate::records::encode_sounding(&p, Some(&src), &mut with_text).unwrap();
+        assert!(m > n);
+        load_profile(&with_text[..m], &mut out).unwrap();
+        assert_eq!(out.levels(), p.levels());
         // Bytes after the record (what a later firmware may add) are left alone.
         buf[n..n + 5].copy_from_slice(&[7, 1, 2, 3, 4]);
         load_profile(&buf[..n + 5], &mut out).unwrap();

@@ -86,8 +86,8 @@ fn station_set_bytes() {
     loopback(&v, &want);
 }
 
-#[test]
-fn sounding_bytes() {
+/// A two-level sounding and its bytes as every firmware so far writes them.
+fn small_sounding() -> (Profile, Vec<u8>) {
     let info = StationInfo {
         id: "TSL".try_into().unwrap(),
         lat_deg: Some(45.5),
@@ -137,12 +137,130 @@ fn sounding_bytes() {
         &f(50_000.0),
         &[0, 0, 0, 0, 0],
     ]);
+    (v, want)
+}
+
+#[test]
+fn sounding_bytes() {
+    let (v, want) = small_sounding();
     loopback(&v, &want);
     // A damaged level (pressure rising upward) is refused on reading.
     let mut bad = want.clone();
     let at = bad.len() - 5 - 8;
     bad[at..at + 8].copy_from_slice(&90_000.0f64.to_le_bytes());
     assert_eq!(Profile::decode(&bad), Err(RecordError::Invalid));
+}
+
+/// Encode, compare with the expected bytes, decode, compare; cut short: an error.
+fn source_loopback(value: &SourceText<'_>, expected: &[u8]) {
+    let mut buf = [0u8; 20_000];
+    let n = value.encode(&mut buf).unwrap();
+    assert_eq!(&buf[..n], expected, "bytes of {value:?}");
+    assert_eq!(&SourceText::decode(expected).unwrap(), value);
+    assert_eq!(check_any(expected), Ok(SourceText::TAG));
+    for k in 0..expected.len() {
+        assert!(
+            SourceText::decode(&expected[..k]).is_err(),
+            "decoded from {k} bytes"
+        );
+    }
+}
+
+#[test]
+fn source_text_bytes() {
+    // tag 7, version 1, SourceFormat::Temp (variant 0), the text as a varint length
+    // then its UTF-8 bytes.
+    let v = SourceText {
+        format: SourceFormat::Temp,
+        text: "TTAA 64121 08888=\n",
+    };
+    let want = cat(&[&[7, 1, 0], &s("TTAA 64121 08888=\n")]);
+    source_loopback(&v, &want);
+    // 200 bytes of text: the length 200 is the varint 0xC8 0x01.
+    let long = "TTBB 6412/ 08888 00799 09030 ".repeat(7)[..200].to_string();
+    let v = SourceText {
+        format: SourceFormat::Temp,
+        text: &long,
+    };
+    let want = cat(&[&[7, 1, 0, 0xC8, 0x01], long.as_bytes()]);
+    source_loopback(&v, &want);
+    // Not UTF-8, an unknown format, a newer version: errors.
+    assert_eq!(
+        SourceText::decode(&[7, 1, 0, 1, 0xFF]),
+        Err(RecordError::Malformed)
+    );
+    assert_eq!(
+        SourceText::decode(&[7, 1, 9, 1, b'T']),
+        Err(RecordError::Malformed)
+    );
+    assert_eq!(
+        SourceText::decode(&[7, 2, 0, 1, b'T']),
+        Err(RecordError::NewerVersion { found: 2, known: 1 })
+    );
+}
+
+#[test]
+fn sounding_with_its_source_text() {
+    let (p, profile_bytes) = small_sounding();
+    let src = SourceText {
+        format: SourceFormat::Temp,
+        text: "TTAA 02121 08888 99810=",
+    };
+    // The sounding record unchanged, then the source-text record.
+    let want = cat(&[&profile_bytes, &[7, 1, 0], &s("TTAA 02121 08888 99810=")]);
+    let mut buf = [0u8; 1024];
+    let n = encode_sounding(&p, Some(&src), &mut buf).unwrap();
+    assert_eq!(&buf[..n], &want[..]);
+    assert_eq!(decode_sounding(&want).unwrap(), (p.clone(), Some(src)));
+    assert_eq!(check_any(&want), Ok(Profile::TAG));
+    // The device reads only the leading sounding record and ignores the trailer.
+    assert_eq!(Profile::decode(&want).unwrap(), p);
+    // Cut short anywhere: an error, except just after the sounding record, where what
+    // is left is a whole sounding without a trailer.
+    for k in 0..want.len() {
+        let r = decode_sounding(&want[..k]);
+        if k == profile_bytes.len() {
+            assert_eq!(r.unwrap(), (p.clone(), None));
+        } else {
+            assert!(r.is_err(), "decoded from {k} bytes");
+        }
+    }
+    // A buffer too small for the trailer is refused, not cut.
+    assert_eq!(
+        encode_sounding(&p, Some(&src), &mut buf[..profile_bytes.len() + 3]),
+        Err(RecordError::BufferTooSmall)
+    );
+    // Without a source, the dataset is the sounding record alone.
+    let n = encode_sounding(&p, None, &mut buf).unwrap();
+    assert_eq!(&buf[..n], &profile_bytes[..]);
+}
+
+#[test]
+fn an_old_sounding_dataset_still_decodes() {
+    // The bytes today's and every earlier firmware store for a sounding: the sounding
+    // record alone. They read as the sounding with no source text (so the laptop writes
+    // it back as CSV), by the whole-dataset reader and by the device's.
+    let (p, old) = small_sounding();
+    assert_eq!(decode_sounding(&old).unwrap(), (p.clone(), None));
+    assert_eq!(Profile::decode(&old).unwrap(), p);
+    assert_eq!(check_any(&old), Ok(Profile::TAG));
+}
+
+#[test]
+fn bytes_after_a_sounding_that_are_no_source_text() {
+    let (p, old) = small_sounding();
+    // A settings record or stray bytes after it: damage to the whole-dataset reader...
+    for tail in [
+        &[5u8, 1, 0, 0, 0, 0][..],
+        &[0xFF][..],
+        &[7, 1, 0, 5, b'T'][..],
+    ] {
+        let bad = cat(&[&old, tail]);
+        assert!(decode_sounding(&bad).is_err(), "{tail:?}");
+        assert!(check_any(&bad).is_err(), "{tail:?}");
+        // ...while the device's reader of the leading record still has its sounding.
+        assert_eq!(Profile::decode(&bad).unwrap(), p);
+    }
 }
 
 #[test]
@@ -256,6 +374,13 @@ fn newer_and_foreign_records_are_errors() {
     assert_eq!(
         Settings::decode(&[5, 1, 0, 0, 0, 0, 0]),
         Err(RecordError::Malformed)
+    );
+    assert_eq!(
+        check_any(&[8, 1]),
+        Err(RecordError::WrongType {
+            expected: 0,
+            found: 8
+        })
     );
     assert_eq!(check_any(&[]), Err(RecordError::Truncated));
 }

@@ -3,17 +3,20 @@
 //!
 //! | file | kind | written back as |
 //! |---|---|---|
-//! | station CSV (`id,lat,lon,height_m[,sigma_m]`) | stations | the same CSV |
-//! | sounding CSV (`pressure_hpa,…`) or TEMP text | sounding | leeward's sounding CSV |
-//! | ridge profile CSV (`distance_km,height_m` with `# lat=`, `# lon=`, `# axis_deg=`) | ridge | the same CSV |
+//! | station CSV (`id,lat,lon,height_m[,sigma_m]`) | stations | a station CSV of the same values |
+//! | sounding CSV (`pressure_hpa,…`) | sounding | leeward's sounding CSV of the same values |
+//! | TEMP text | sounding | the same text, byte for byte (kept in a source-text record after the sounding) |
+//! | ridge profile CSV (`distance_km,height_m` with `# lat=`, `# lon=`, `# axis_deg=`) | ridge | a ridge profile CSV of the same values |
+//!
+//! A sounding dataset without the source-text record (pushed from a CSV, or by a `leeward`
+//! before that record) is written back as leeward's sounding CSV.
 
 use crate::CliError;
 use clap::{Args, ValueEnum};
 use leeward_core::crossing::{Profile as RidgeProfile, Ridge};
 use leeward_core::geo::LatLon;
 use leeward_core::network::Network;
-use leeward_core::sounding::Profile;
-use leeward_firmware::records::{LogEntry, Record};
+use leeward_firmware::records::{LogEntry, Record, SourceFormat, SourceText};
 use leeward_firmware::storage::{valid_name, DataKind};
 use std::path::{Path, PathBuf};
 
@@ -149,8 +152,54 @@ fn read_ridge(path: &Path, text: &str) -> Result<Ridge, CliError> {
     })
 }
 
-/// Read `p.file` into the name, kind and record bytes to store.
-pub fn encode_file(p: &PushArgs) -> Result<(String, DataKind, Vec<u8>), CliError> {
+/// A file made ready to store.
+#[derive(Debug)]
+pub struct Encoded {
+    /// Name on the device.
+    pub name: String,
+    /// Its kind.
+    pub kind: DataKind,
+    /// The dataset's bytes (its records).
+    pub bytes: Vec<u8>,
+    /// A line for the user about how it was stored, when that differs from the usual.
+    pub note: Option<String>,
+}
+
+/// A sounding dataset: the sounding record and, for a TEMP report, the report's text
+/// after it, if both fit in `max` bytes. The note says when the text was left out.
+fn sounding_bytes(
+    path: &Path,
+    loaded: &crate::sounding_cmd::Loaded,
+    text: &str,
+    max: usize,
+) -> Result<(Vec<u8>, Option<String>), CliError> {
+    let plain = record(&loaded.profile)?;
+    if loaded.format != crate::sounding_cmd::Format::Temp {
+        return Ok((plain, None));
+    }
+    let src = SourceText {
+        format: SourceFormat::Temp,
+        text,
+    };
+    let mut buf = vec![0u8; max];
+    match leeward_firmware::records::encode_sounding(&loaded.profile, Some(&src), &mut buf) {
+        Ok(n) => {
+            buf.truncate(n);
+            Ok((buf, None))
+        }
+        Err(_) => Ok((
+            plain,
+            Some(format!(
+                "{}: the TEMP text does not fit on the device beside its decoded sounding                  (at most {max} bytes together), so only the decoded sounding is stored                  and it pulls back as CSV",
+                path.display()
+            )),
+        )),
+    }
+}
+
+/// Read `p.file` into the name, kind and record bytes to store, in at most `max` bytes
+/// where there is a choice (the TEMP text kept beside a sounding).
+pub fn encode_file(p: &PushArgs, max: usize) -> Result<Encoded, CliError> {
     let name = name_for(p)?;
     let path = &p.file;
     let text = std::fs::read_to_string(path)
@@ -159,27 +208,37 @@ pub fn encode_file(p: &PushArgs) -> Result<(String, DataKind, Vec<u8>), CliError
         Some(k) => k,
         None => sniff(path, &text)?,
     };
-    let (kind, bytes) = match kind {
+    let (kind, bytes, note) = match kind {
         PushKind::Stations => {
             let net: Network = crate::input::read_network(path)?;
-            (DataKind::Stations, record(&net)?)
+            (DataKind::Stations, record(&net)?, None)
         }
         PushKind::Sounding => {
             let loaded =
                 crate::sounding_cmd::load(path, crate::sounding_cmd::Format::Auto, p.elevation)?;
-            (DataKind::Sounding, record(&loaded.profile)?)
+            let (bytes, note) = sounding_bytes(path, &loaded, &text, max)?;
+            (DataKind::Sounding, bytes, note)
         }
-        PushKind::Ridge => (DataKind::Ridge, record(&read_ridge(path, &text)?)?),
+        PushKind::Ridge => (DataKind::Ridge, record(&read_ridge(path, &text)?)?, None),
     };
-    Ok((name, kind, bytes))
+    Ok(Encoded {
+        name,
+        kind,
+        bytes,
+        note,
+    })
 }
 
 fn damaged(name: &str, e: impl std::fmt::Display) -> CliError {
     CliError::input(format!("dataset {name} on the device cannot be read: {e}"))
 }
 
-/// The file text of dataset `name`.
-pub fn decode_dataset(name: &str, kind: DataKind, bytes: &[u8]) -> Result<String, CliError> {
+/// The file text of dataset `name`, and the word for its format ("CSV", "TEMP").
+pub fn decode_dataset(
+    name: &str,
+    kind: DataKind,
+    bytes: &[u8],
+) -> Result<(String, &'static str), CliError> {
     match kind {
         DataKind::Stations => {
             let net = Network::decode(bytes).map_err(|e| damaged(name, e))?;
@@ -194,14 +253,24 @@ pub fn decode_dataset(name: &str, kind: DataKind, bytes: &[u8]) -> Result<String
                     st.sigma()
                 ));
             }
-            Ok(s)
+            Ok((s, "CSV"))
         }
         DataKind::Sounding => {
-            let p = Profile::decode(bytes).map_err(|e| damaged(name, e))?;
-            let mut s = String::new();
-            leeward_core::sounding::csv::write(&p, &mut s)
-                .map_err(|_| damaged(name, "it does not fit the CSV writer"))?;
-            Ok(s)
+            let (p, source) =
+                leeward_firmware::records::decode_sounding(bytes).map_err(|e| damaged(name, e))?;
+            match source {
+                Some(SourceText {
+                    format: SourceFormat::Temp,
+                    text,
+                }) => Ok((text.to_string(), "TEMP")),
+                // Pushed as CSV, or stored before the source text was kept.
+                _ => {
+                    let mut s = String::new();
+                    leeward_core::sounding::csv::write(&p, &mut s)
+                        .map_err(|_| damaged(name, "it does not fit the CSV writer"))?;
+                    Ok((s, "CSV"))
+                }
+            }
         }
         DataKind::Ridge => {
             let r = Ridge::decode(bytes).map_err(|e| damaged(name, e))?;
@@ -222,7 +291,7 @@ pub fn decode_dataset(name: &str, kind: DataKind, bytes: &[u8]) -> Result<String
                     )));
                 }
             }
-            Ok(s)
+            Ok((s, "CSV"))
         }
         other => Err(CliError::input(format!(
             "dataset {name} is a {} dataset, which has no file format yet",
@@ -296,4 +365,59 @@ pub fn open_flash(
     let h = store.health();
     eprintln!("leeward: flash image {}: {h:?}", path.display());
     Ok(store)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn demo(name: &str) -> PathBuf {
+        [env!("CARGO_MANIFEST_DIR"), "..", "demo", name]
+            .iter()
+            .collect()
+    }
+
+    fn push_args(file: PathBuf) -> PushArgs {
+        PushArgs {
+            file,
+            kind: None,
+            name: Some("T".into()),
+            elevation: Some(1850.0),
+        }
+    }
+
+    #[test]
+    fn a_sounding_stored_without_its_text_pulls_as_csv() {
+        // What a `leeward` before the source-text record stored for a TEMP report: the
+        // decoded sounding record alone. It comes back as leeward's sounding CSV.
+        let path = demo("tessel-col.temp");
+        let loaded =
+            crate::sounding_cmd::load(&path, crate::sounding_cmd::Format::Auto, Some(1850.0))
+                .unwrap();
+        let old = record(&loaded.profile).unwrap();
+        let (text, format) = decode_dataset("T", DataKind::Sounding, &old).unwrap();
+        assert_eq!(format, "CSV");
+        let back = leeward_core::sounding::csv::parse(&text).unwrap();
+        assert_eq!(back, loaded.profile);
+        // Today's push keeps the text after that same record.
+        let new = encode_file(&push_args(path.clone()), 16 * 1024).unwrap();
+        assert_eq!(new.note, None);
+        assert_eq!(&new.bytes[..old.len()], &old[..]);
+        let (text, format) = decode_dataset("T", DataKind::Sounding, &new.bytes).unwrap();
+        assert_eq!(format, "TEMP");
+        assert_eq!(text, std::fs::read_to_string(&path).unwrap());
+    }
+
+    #[test]
+    fn a_temp_text_that_does_not_fit_is_left_out_and_said_so() {
+        let path = demo("tessel-col.temp");
+        let full = encode_file(&push_args(path.clone()), 16 * 1024).unwrap();
+        // One byte short of the sounding and its text together.
+        let e = encode_file(&push_args(path), full.bytes.len() - 1).unwrap();
+        let note = e.note.expect("a note");
+        assert!(note.contains("pulls back as CSV"), "{note}");
+        let (_, format) = decode_dataset("T", DataKind::Sounding, &e.bytes).unwrap();
+        assert_eq!(format, "CSV");
+        assert!(e.bytes.len() < full.bytes.len());
+    }
 }

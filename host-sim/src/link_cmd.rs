@@ -53,7 +53,8 @@ pub enum LinkAction {
     List,
     /// Store a file on the device.
     Push(crate::datasets::PushArgs),
-    /// Fetch a dataset into a file, in the format it was pushed in.
+    /// Fetch a dataset into a file, in the format it was pushed in (a TEMP report as its
+    /// text; a dataset stored without the text, as CSV).
     Pull {
         /// Dataset name on the device.
         name: String,
@@ -184,7 +185,13 @@ pub fn link(a: &LinkArgs, json: bool) -> Result<String, CliError> {
             Ok(s)
         }
         LinkAction::Push(p) => {
-            let (name, kind, bytes) = crate::datasets::encode_file(p)?;
+            let max = usize::try_from(c.max_dataset).unwrap_or(usize::MAX);
+            let crate::datasets::Encoded {
+                name,
+                kind,
+                bytes,
+                note,
+            } = crate::datasets::encode_file(p, max)?;
             if bytes.len() as u64 > u64::from(c.max_dataset) {
                 return Err(CliError::input(format!(
                     "{} is {} bytes as a dataset; the device takes at most {}",
@@ -194,11 +201,14 @@ pub fn link(a: &LinkArgs, json: bool) -> Result<String, CliError> {
                 )));
             }
             c.put(&name, kind, &bytes)?;
+            if let Some(n) = &note {
+                eprintln!("leeward: {n}");
+            }
             Ok(if json {
                 format!(
                     "{}\n",
                     serde_json::json!({"stored": name, "kind": kind.word(), "bytes": bytes.len(),
-                        "crc32": leeward_firmware::link::crc32(&bytes)})
+                        "crc32": leeward_firmware::link::crc32(&bytes), "note": note})
                 )
             } else {
                 format!(
@@ -222,11 +232,11 @@ pub fn link(a: &LinkArgs, json: bool) -> Result<String, CliError> {
                     "dataset {name} is of a kind this program does not know"
                 ))
             })?;
-            let text = crate::datasets::decode_dataset(name, kind, &bytes)?;
+            let (text, format) = crate::datasets::decode_dataset(name, kind, &bytes)?;
             std::fs::write(out, text)
                 .map_err(|e| CliError::input(format!("cannot write {}: {e}", out.display())))?;
             Ok(format!(
-                "wrote {name} ({}) to {}\n",
+                "wrote {name} ({}, {format}) to {}\n",
                 kind.word(),
                 out.display()
             ))

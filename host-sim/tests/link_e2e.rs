@@ -223,3 +223,100 @@ fn a_device_killed_during_pushes_keeps_what_it_acknowledged() {
 fn kill_9(pid: u32) {
     let _ = Command::new("kill").args(["-9", &pid.to_string()]).status();
 }
+
+/// The CRC-32 a push reports ("… (CRC-32 1c7850bb)"): equal CRCs mean equal datasets.
+fn pushed_crc(out: &str) -> String {
+    let at = out.find("CRC-32 ").expect("a CRC in the push report") + 7;
+    out[at..at + 8].to_string()
+}
+
+#[test]
+fn each_file_comes_back_in_the_format_it_was_pushed_in() {
+    let d = tmpdir("formats");
+    let (flash, socket) = (d.join("flash.img"), d.join("dev.sock"));
+    let mut dev = device(&flash, &socket);
+    let temp = demo_file("tessel-col.temp");
+    let sounding = demo_file("tessel-col-sounding.csv");
+    let stations = demo_file("tessel-stations.csv");
+    let push = |file: &str, name: &str, extra: &[&str]| {
+        let mut a = vec!["push", file, "--name", name];
+        a.extend_from_slice(extra);
+        pushed_crc(&ok(&link(&socket, &a)))
+    };
+    let pull = |name: &str, file: &str| {
+        let back = d.join(file);
+        let out = ok(&link(
+            &socket,
+            &["pull", name, "--out", back.to_str().unwrap()],
+        ));
+        (back, out)
+    };
+
+    // A TEMP report comes back as the same text, byte for byte.
+    push(&temp, "TEMP", &["--elevation", "1850"]);
+    let (tback, out) = pull("TEMP", "temp-back.temp");
+    assert!(out.contains("(sounding, TEMP)"), "{out}");
+    assert_eq!(
+        std::fs::read(&tback).unwrap(),
+        std::fs::read(&temp).unwrap(),
+        "the pulled TEMP report differs from the pushed one"
+    );
+    // After a restart on the same flash too.
+    dev.kill().unwrap();
+    dev.wait().unwrap();
+    let mut dev = device(&flash, &socket);
+    let (tback2, _) = pull("TEMP", "temp-back2.temp");
+    assert_eq!(
+        std::fs::read(&tback2).unwrap(),
+        std::fs::read(&temp).unwrap()
+    );
+
+    // A sounding CSV comes back as leeward's sounding CSV of the same values: pushed
+    // again, it makes the same dataset (same CRC), and it analyses the same.
+    let a = push(&sounding, "SONDE", &[]);
+    let (sback, out) = pull("SONDE", "sonde-back.csv");
+    assert!(out.contains("(sounding, CSV)"), "{out}");
+    let text = std::fs::read_to_string(&sback).unwrap();
+    assert!(
+        text.lines()
+            .find(|l| !l.starts_with('#'))
+            .unwrap()
+            .starts_with("pressure_hpa,"),
+        "{text}"
+    );
+    assert!(!text.contains("TTAA"), "{text}");
+    assert_eq!(a, push(sback.to_str().unwrap(), "SONDE2", &[]));
+    assert_eq!(
+        json(&["sounding", &sounding]),
+        json(&["sounding", sback.to_str().unwrap()])
+    );
+
+    // A station CSV comes back as a station CSV of the same values (not the same bytes:
+    // its comments are not kept and numbers are written in their shortest form).
+    let a = push(&stations, "ST", &[]);
+    let (stback, out) = pull("ST", "st-back.csv");
+    assert!(out.contains("(stations, CSV)"), "{out}");
+    assert!(std::fs::read_to_string(&stback)
+        .unwrap()
+        .starts_with("id,lat,lon,height_m,sigma_m\n"));
+    assert_eq!(a, push(stback.to_str().unwrap(), "ST2", &[]));
+
+    // A ridge profile likewise.
+    let ridge = d.join("ridge.csv");
+    std::fs::write(
+        &ridge,
+        format!(
+            "# lat=45.5\n# lon=-140\n# axis_deg=0\n{}",
+            std::fs::read_to_string(data("profile_ok.csv")).unwrap()
+        ),
+    )
+    .unwrap();
+    let a = push(ridge.to_str().unwrap(), "RIDGE", &[]);
+    let (rback, out) = pull("RIDGE", "ridge-back.csv");
+    assert!(out.contains("(ridge, CSV)"), "{out}");
+    assert_eq!(a, push(rback.to_str().unwrap(), "RIDGE2", &[]));
+
+    dev.kill().unwrap();
+    dev.wait().unwrap();
+    std::fs::remove_dir_all(&d).unwrap();
+}
