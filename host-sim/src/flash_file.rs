@@ -95,10 +95,10 @@ fn open_file(path: &Path, size: usize) -> Result<File, String> {
         .len();
     if len != size as u64 {
         return Err(format!(
-            "{} is {len} bytes, not a flash image of this device ({size} bytes, the board's \
-             flash; images made before leeward's flash matched the board's are 131072 bytes \
-             and cannot be read): move it away or delete it to start a blank image there, or \
-             give --flash (or LEEWARD_FLASH) a new file",
+            "{} is {len} bytes, not a flash image of this device ({size} bytes, laid out as \
+             the handheld's flash; an image from an earlier leeward, 131072 bytes, has another \
+             layout and cannot be read): move it away or delete it to start a blank image \
+             there, or give --flash (or LEEWARD_FLASH) a new file",
             path.display()
         ));
     }
