@@ -163,12 +163,13 @@ fn two_flashes_cut_at_every_point_short() {
 #[test]
 #[ignore = "heavy: run in release by .ci/run (see DEVELOPERS.md)"]
 fn t4_two_flashes_board_geometry() {
-    // The board's own layout: map in sectors 1-3 (16 KiB each), log in sector 7.
-    let map = 0x4000..0x1_0000;
-    let log = 0x6_0000..0x8_0000;
+    // The board's own layout (`flash::layout`, shared with the board and the simulator):
+    // map in sectors 1-3 (16 KiB each), log in sector 7, 4-byte words.
+    use leeward_firmware::flash::layout::{LOG_AREA, LOG_ERASE, MAP_AREA, MAP_ERASE, WRITE_SIZE};
+    let (map, log) = (MAP_AREA, LOG_AREA);
     let image = TwoFlash {
-        map: SimFlash::<_, 4, 16384>::new(vec![0xFF; map.end as usize], 7),
-        log: SimFlash::<_, 4, 131072>::new(vec![0xFF; log.end as usize], 8),
+        map: SimFlash::<_, WRITE_SIZE, MAP_ERASE>::new(vec![0xFF; map.end as usize], 7),
+        log: SimFlash::<_, WRITE_SIZE, LOG_ERASE>::new(vec![0xFF; log.end as usize], 8),
     };
     let (on_map, on_log, acked) = every_cut_point2(image, (&map, &log), 0xB0A2D, 150, 6000);
     eprintln!(

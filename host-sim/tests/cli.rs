@@ -387,3 +387,36 @@ fn demo_runs_and_speaks_plainly() {
     num(&v["ridge"], "trough_distance_km");
     num(&v["coriolis"], "f");
 }
+
+#[test]
+fn a_flash_image_of_the_old_size_is_refused_not_wiped() {
+    // An image from before the simulator's flash matched the board's: 8 pages of 16 KiB
+    // (131072 bytes) where the board's flash is 512 KiB. The device refuses it (exit 2,
+    // one line saying what to do) and leaves every byte as it was.
+    let dir = std::env::temp_dir().join(format!("leeward-cli-oldimg-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).unwrap();
+    let img = dir.join("old.img");
+    let old: Vec<u8> = (0..128 * 1024).map(|i| (i % 253) as u8).collect();
+    std::fs::write(&img, &old).unwrap();
+    let sock = dir.join("dev.sock");
+    let (img_s, sock_s) = (img.to_string_lossy(), sock.to_string_lossy());
+    refused(
+        &["device", "--flash", &img_s, "--socket", &sock_s],
+        "delete it",
+    );
+    refused(
+        &["device", "--flash", &img_s, "--socket", &sock_s],
+        "is 131072 bytes",
+    );
+    assert_eq!(
+        std::fs::read(&img).unwrap(),
+        old,
+        "the old image was changed"
+    );
+    assert!(
+        !sock.exists(),
+        "the device served a socket on a refused image"
+    );
+    std::fs::remove_dir_all(&dir).unwrap();
+}

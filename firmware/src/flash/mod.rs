@@ -8,6 +8,8 @@
 //!
 //! Both areas may be on one NOR flash, or on two flash types of different erase sizes
 //! ([`TwoFlash`], as the board's 16 KiB and 128 KiB sectors): see [`Areas`].
+//! The board's layout of the two areas, which the simulator's flash image copies, is
+//! in [`layout`].
 //!
 //! A dataset is split into chunks of at most [`CHUNK_BYTES`] (a map item must fit in one
 //! erase page, and a long sounding does not). Each slot has two banks of chunk keys; a new
@@ -27,6 +29,7 @@
 //! (its map loses items under power cuts on 1-byte words: docs/reliability.md).
 
 pub mod blocking;
+pub mod layout;
 pub mod sim;
 
 use core::ops::Range;

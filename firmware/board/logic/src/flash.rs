@@ -10,19 +10,20 @@
 //! from sector 4 (`_stext` in memory.x) up to the end of sector 6, the map (settings and
 //! datasets) in sectors 1–3 and the results log in sector 7. sequential-storage wants
 //! pages of one size within an area, so each area has its own erase size: 16 KiB for the
-//! map, 128 KiB for the log.
+//! map, 128 KiB for the log. The areas, their erase sizes and the write word are
+//! `leeward_firmware::flash::layout` (re-exported here), shared with the simulator's
+//! flash image; this module adds the sector map and checks the two agree.
 
 use core::ops::Range;
 
 use embedded_storage::nor_flash::{NorFlashError, NorFlashErrorKind};
 
-/// Bytes of the internal flash.
-pub const FLASH_BYTES: u32 = 512 * 1024;
+pub use leeward_firmware::flash::layout::{FLASH_BYTES, LOG_AREA, LOG_ERASE, MAP_AREA, MAP_ERASE};
 /// Where the flash is mapped.
 pub const BASE: u32 = 0x0800_0000;
 /// Write word the driver presents, bytes (programmed as four byte writes: the x8
 /// parallelism works at any supply voltage; sequential-storage needs at least 4).
-pub const WORD: usize = 4;
+pub const WORD: usize = leeward_firmware::flash::layout::WRITE_SIZE;
 
 /// One flash sector.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -81,14 +82,6 @@ pub const SECTORS: [Sector; 8] = [
     },
 ];
 
-/// Erase size of the map area (the small sectors).
-pub const MAP_ERASE: usize = 16 * 1024;
-/// Erase size of the log area (a large sector).
-pub const LOG_ERASE: usize = 128 * 1024;
-/// The map area: sectors 1–3.
-pub const MAP_AREA: Range<u32> = 16 * K..64 * K;
-/// The log area: sector 7.
-pub const LOG_AREA: Range<u32> = 384 * K..512 * K;
 /// Where the program's code starts (`_stext` in memory.x): sector 4.
 pub const PROGRAM_START: u32 = 64 * K;
 /// Where the program must end (the end of memory.x's FLASH): the start of sector 7.
