@@ -39,7 +39,9 @@ fn rows(font: &MonoFont, c: char) -> Vec<u32> {
 
 fn table(name: &str, doc: &str, ty: &str, font: &MonoFont) -> String {
     let h = font.character_size.height;
-    let mut out = format!("/// {doc}\npub const {name}: [[{ty}; {h}]; GLYPHS] = [\n");
+    // rustfmt would fold the one-glyph-a-line layout the comparison below expects.
+    let mut out =
+        format!("/// {doc}\n#[rustfmt::skip]\npub const {name}: [[{ty}; {h}]; GLYPHS] = [\n");
     for i in 0..192 {
         let c = glyph_char(i);
         let r: Vec<String> = rows(font, c).iter().map(|m| format!("{m:#x}")).collect();
