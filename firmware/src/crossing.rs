@@ -225,15 +225,12 @@ pub struct CrossingView {
     pub flat_track: Track,
 }
 
-#[cfg(not(target_os = "none"))]
-use crossing::run as run_track;
-/// The core's track on this build: on the device (a bare-metal target), the f32 track
-/// (`crossing::run_f32`): its FPU does single precision in hardware and f64 in software,
-/// the track takes about 18 times more instructions in f64 (docs/performance.md, "f32 against f64"). On
-/// a host (the simulator and the tests), the f64 reference (`crossing::run`), whose
-/// figures the device's agree with to within a step of the integration
-/// (tests/tests/crossing_f32.rs): the simulator's screens are the reference ones.
-#[cfg(target_os = "none")]
+/// The core's track as the device runs it, on the device and in the simulator alike: the
+/// f32 track (`crossing::run_f32`). The handheld's FPU does single precision in hardware
+/// and f64 in software, where the track takes about 18 times more instructions
+/// (docs/performance.md, "f32 against f64"); its figures agree with the f64 reference
+/// (`crossing::run`, the command line's) to within a step of the integration
+/// (tests/tests/crossing_f32.rs). The simulator shows what the device would.
 use crossing::run_f32 as run_track;
 
 /// Run both crossings (see `run_track` for the precision).

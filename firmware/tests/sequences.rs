@@ -768,7 +768,9 @@ fn sounding_in_feet_and_knots() {
 
 // ---- Ridge crossing ---------------------------------------------------------------------
 
-use leeward_core::crossing::{run, CrossingInput, Discard, Unavailable};
+// The device runs the f32 track (leeward_firmware::crossing): its answers are the truth
+// the screens are checked against.
+use leeward_core::crossing::{run_f32 as run, CrossingInput, Discard, Unavailable};
 
 /// From anywhere (no notice open) to the Ridge crossing form: home, row 5, open.
 const TO_CROSSING: [Key; 3] = [Menu, Digit(5), Ok];
