@@ -51,16 +51,20 @@ impl FrameBuffer {
     /// A blank buffer with every line marked dirty, so the first flush sends the whole
     /// screen (the display's contents at power-on are unknown).
     pub const fn new() -> Self {
-        let mut stale = [u32::MAX; DIRTY_WORDS];
-        // Only lines that exist are stale.
-        let spare = DIRTY_WORDS * 32 - HEIGHT;
-        stale[DIRTY_WORDS - 1] = u32::MAX >> spare;
         FrameBuffer {
             bits: [[0; LINE_BYTES]; HEIGHT],
             sent: [0; HEIGHT],
             touched: [0; DIRTY_WORDS],
-            stale,
+            stale: Self::every_line(),
         }
+    }
+
+    /// A flag for every line that exists (and none past the bottom).
+    const fn every_line() -> [u32; DIRTY_WORDS] {
+        let mut words = [u32::MAX; DIRTY_WORDS];
+        let spare = DIRTY_WORDS * 32 - HEIGHT;
+        words[DIRTY_WORDS - 1] = u32::MAX >> spare;
+        words
     }
 
     fn flag(words: &[u32; DIRTY_WORDS], y: usize) -> bool {
@@ -74,9 +78,7 @@ impl FrameBuffer {
     /// Mark every line to be sent at the next flush, whatever it holds (after the display
     /// lost its contents, or now and then to repair a change the CRC could not see).
     pub fn invalidate(&mut self) {
-        self.stale = [u32::MAX; DIRTY_WORDS];
-        let spare = DIRTY_WORDS * 32 - HEIGHT;
-        self.stale[DIRTY_WORDS - 1] = u32::MAX >> spare;
+        self.stale = Self::every_line();
     }
 
     /// The pixel at (x, y); `None` outside the display.

@@ -171,9 +171,14 @@ pub fn demo_options() -> SummaryOptions {
 pub fn demo_view() -> Result<SoundingView> {
     let mut profile = DeviceProfile::empty(StationInfo::default());
     demo::sounding_into(&mut profile)?;
+    view_in_place(&profile)
+}
+
+/// The view of `profile`, its summary made in place against the demo ridge.
+fn view_in_place(profile: &DeviceProfile) -> Result<SoundingView> {
     let mut summary = Summary::empty();
-    summarise_into(&profile, &demo_options(), &mut summary)?;
-    Ok(SoundingView::of(&profile, &summary))
+    summarise_into(profile, &demo_options(), &mut summary)?;
+    Ok(SoundingView::of(profile, &summary))
 }
 
 /// Why a stored sounding could not be read into the device's profile.
@@ -251,9 +256,7 @@ pub fn load_profile<const N: usize>(
 pub fn stored_view(bytes: &[u8]) -> core::result::Result<SoundingView, StoredError> {
     let mut profile = DeviceProfile::empty(StationInfo::default());
     load_profile(bytes, &mut profile).map_err(StoredError::Load)?;
-    let mut summary = Summary::empty();
-    summarise_into(&profile, &demo_options(), &mut summary).map_err(StoredError::Core)?;
-    Ok(SoundingView::of(&profile, &summary))
+    view_in_place(&profile).map_err(StoredError::Core)
 }
 
 /// Why a stored sounding gave no summary.

@@ -9,6 +9,7 @@
 //! how the tests find a label running past its box without looking at pixels.
 
 use crate::text::{chars, wrap};
+#[cfg(test)]
 use embedded_graphics::mono_font::{iso_8859_1, MonoFont};
 use embedded_graphics::pixelcolor::BinaryColor;
 use embedded_graphics::prelude::*;
@@ -112,23 +113,22 @@ fn draw_glyph<D: DrawTarget<Color = BinaryColor>>(
     Ok(())
 }
 
-/// The 8×13 font with the fast mapping.
-const SMALL_FONT: MonoFont<'static> = MonoFont {
-    glyph_mapping: &latin1_index,
-    ..iso_8859_1::FONT_8X13
-};
-
-/// The 10×20 font with the fast mapping.
-const BODY_FONT: MonoFont<'static> = MonoFont {
-    glyph_mapping: &latin1_index,
-    ..iso_8859_1::FONT_10X20
-};
-
 impl Font {
+    /// The embedded-graphics font its glyph table was made from: the reference the
+    /// tests draw with (the device draws from the tables only).
+    #[cfg(test)]
     fn mono(self) -> &'static MonoFont<'static> {
         match self {
-            Font::Small => &SMALL_FONT,
-            Font::Body | Font::Big => &BODY_FONT,
+            Font::Small => &iso_8859_1::FONT_8X13,
+            Font::Body | Font::Big => &iso_8859_1::FONT_10X20,
+        }
+    }
+    /// Width (spacing included) and height of a glyph cell at scale 1, pixels: those of
+    /// the font its table holds (a unit test checks them against embedded-graphics').
+    const fn cell(self) -> (u32, u32) {
+        match self {
+            Font::Small => (8, 13),
+            Font::Body | Font::Big => (10, 20),
         }
     }
     fn scale(self) -> u32 {
@@ -139,12 +139,11 @@ impl Font {
     }
     /// Width of one character cell, pixels.
     pub fn cell_w(self) -> u32 {
-        let m = self.mono();
-        (m.character_size.width + m.character_spacing) * self.scale()
+        self.cell().0 * self.scale()
     }
     /// Height of one character cell, pixels.
     pub fn cell_h(self) -> u32 {
-        self.mono().character_size.height * self.scale()
+        self.cell().1 * self.scale()
     }
     /// Size of `s` set in this font, pixels.
     pub fn measure(self, s: &str) -> Size {
@@ -508,6 +507,15 @@ mod tests {
         assert_eq!(log.0.as_slice(), [false]);
         let inked = d.affected_area();
         assert!(area.contains(inked.top_left) && area.contains(inked.bottom_right().unwrap()));
+    }
+
+    #[test]
+    fn the_cells_are_the_fonts_own() {
+        for f in [Font::Small, Font::Body, Font::Big] {
+            let m = f.mono();
+            let w = m.character_size.width + m.character_spacing;
+            assert_eq!(f.cell(), (w, m.character_size.height), "{f:?}");
+        }
     }
 
     #[test]

@@ -201,14 +201,7 @@ fn compare((a, pa): (&Crossing, &[TrackPoint]), (b, pb): (&Crossing, &[TrackPoin
             .fold(top, f64::min);
         if y.point.s_m > x.point.s_m && top - low < EXTREME_HYSTERESIS_F32 {
             d.shallow = true;
-            for (p, q) in pa.iter().zip(pb) {
-                let apart = distance_m(p.pos, q.pos);
-                d.point_m = d.point_m.max(apart);
-                if p.s_m > 0.0 {
-                    d.point_rel = d.point_rel.max(apart / p.s_m);
-                }
-                d.zeta_rel = d.zeta_rel.max((p.zeta - q.zeta).abs() / signal);
-            }
+            compare_points(&mut d, pa, pb, signal);
             return d;
         }
     }
@@ -225,6 +218,17 @@ fn compare((a, pa): (&Crossing, &[TrackPoint]), (b, pb): (&Crossing, &[TrackPoin
     if let (Ok(x), Ok(y)) = (a.wavelength_m, b.wavelength_m) {
         d.wavelength_m = (x - y).abs();
     }
+    compare_points(&mut d, pa, pb, signal);
+    for (p, q) in pa.iter().zip(pb) {
+        let dh = (p.heading_deg - q.heading_deg).abs();
+        d.heading_deg = d.heading_deg.max(dh.min(360.0 - dh));
+    }
+    d
+}
+
+/// The worst distance apart of the tracks' points (absolute and per path length) and of
+/// their ζ (per the track's signal), step by step.
+fn compare_points(d: &mut Diff, pa: &[TrackPoint], pb: &[TrackPoint], signal: f64) {
     for (p, q) in pa.iter().zip(pb) {
         let apart = distance_m(p.pos, q.pos);
         d.point_m = d.point_m.max(apart);
@@ -232,10 +236,7 @@ fn compare((a, pa): (&Crossing, &[TrackPoint]), (b, pb): (&Crossing, &[TrackPoin
             d.point_rel = d.point_rel.max(apart / p.s_m);
         }
         d.zeta_rel = d.zeta_rel.max((p.zeta - q.zeta).abs() / signal);
-        let dh = (p.heading_deg - q.heading_deg).abs();
-        d.heading_deg = d.heading_deg.max(dh.min(360.0 - dh));
     }
-    d
 }
 
 fn within(d: &Diff) -> bool {

@@ -153,6 +153,18 @@ pub struct Health {
     pub log_skipped: u16,
 }
 
+impl Health {
+    /// Both areas readable, nothing damaged, lost or skipped.
+    pub const OK: Health = Health {
+        map: AreaState::Ok,
+        log: AreaState::Ok,
+        damaged: 0,
+        foreign: 0,
+        settings_lost: false,
+        log_skipped: 0,
+    };
+}
+
 /// A warning that the log is filling up.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
@@ -340,14 +352,7 @@ impl<A: Areas> FlashStore<A> {
             log_range: log_area,
             slots: core::array::from_fn(|_| Slot::Free { gen: 0 }),
             settings: None,
-            health: Health {
-                map: AreaState::Ok,
-                log: AreaState::Ok,
-                damaged: 0,
-                foreign: 0,
-                settings_lost: false,
-                log_skipped: 0,
-            },
+            health: Health::OK,
             next_seq: 0,
             log_entries: 0,
             buf: [0; BUF_BYTES],

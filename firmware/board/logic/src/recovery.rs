@@ -140,14 +140,7 @@ mod tests {
     use std::vec::Vec;
 
     fn health() -> Health {
-        Health {
-            map: AreaState::Ok,
-            log: AreaState::Ok,
-            damaged: 0,
-            foreign: 0,
-            settings_lost: false,
-            log_skipped: 0,
-        }
+        Health::OK
     }
 
     /// Every piece of text drawn, and whether it fitted its box.
