@@ -551,19 +551,16 @@ impl App {
 
     /// Make stored sounding `name` the Sounding task's current one and show its summary.
     fn use_sounding<S: Storage>(&mut self, name: DataName, storage: &mut S) {
-        let mut buf = [0u8; MAX_SOUNDING_READ];
-        let n = match storage.get(&name, &mut buf) {
-            Ok((DataKind::Sounding, n)) => n,
-            Ok(_) => return self.store_notice("Cannot read", StoreError::NotFound),
-            Err(e) => return self.store_notice("Cannot read", e),
-        };
-        match crate::sounding::stored_view(buf.get(..n).unwrap_or(&[])) {
+        match crate::sounding::stored_view(storage, &name) {
             Ok(v) => {
                 self.sounding = Some(v);
                 self.sounding_from = Some(name);
                 // The crossing form takes its lid and N from this sounding next time.
                 self.crossing_seeded = false;
                 self.screen = Screen::SoundingResult(0);
+            }
+            Err(crate::sounding::StoredError::Load(crate::sounding::LoadError::Store(e))) => {
+                self.store_notice("Cannot read", e)
             }
             Err(crate::sounding::StoredError::Load(e)) => {
                 self.notice = Some(Notice {

@@ -9,6 +9,7 @@
 use crate::plot::{dashed_row, inside, polyline, scale_rows, Axis};
 use crate::records::RecordError;
 use crate::settings::Settings;
+use crate::storage::{DataKind, DataReader, Storage, StoreError};
 use crate::text::line;
 use crate::ui::{Align, Font, Inspect, Painter, BODY_TOP, BODY_W, LINE_H, MARGIN};
 use embedded_graphics::pixelcolor::BinaryColor;
@@ -193,6 +194,8 @@ pub enum LoadError {
         /// Levels the device holds ([`DEVICE_LEVELS`]).
         capacity: u16,
     },
+    /// The store could not give the dataset (or its CRC-32 did not match).
+    Store(StoreError),
 }
 
 impl core::fmt::Display for LoadError {
@@ -203,6 +206,7 @@ impl core::fmt::Display for LoadError {
                 f,
                 "the sounding has {levels} levels; the device holds {capacity}: thin it on the laptop"
             ),
+            LoadError::Store(e) => write!(f, "{e}"),
         }
     }
 }
@@ -213,20 +217,81 @@ impl From<RecordError> for LoadError {
     }
 }
 
-/// Read the sounding record at the start of a stored Sounding dataset into `out`, level
-/// by level, each checked as when typed in (`Profile::push`), with no second copy of the
-/// profile on the stack. Bytes after the record (a later firmware's additions) are left
-/// alone. On an error `out` holds no levels.
-pub fn load_profile<const N: usize>(
-    bytes: &[u8],
+impl From<StoreError> for LoadError {
+    fn from(e: StoreError) -> Self {
+        LoadError::Store(e)
+    }
+}
+
+/// Most bytes of one level in a sounding record (postcard, every field present:
+/// pressure 8, three optional values 9 each, an optional wind 17, the kind 1).
+pub const MAX_LEVEL_BYTES: usize = 53;
+/// Most bytes of the record's head: tag and version 2, the station (identifier 9,
+/// three optional values 9 each, an optional time of at most 13) and the level count 5.
+const MAX_HEAD_BYTES: usize = 2 + 9 + 3 * 9 + 13 + 5;
+/// The window a stored sounding is read through: a few levels at a time.
+pub const READ_WINDOW: usize = 512;
+
+/// Where a sounding record's values come from, one at a time.
+trait Values {
+    /// The unread bytes, at least `want` of them unless the record ends first.
+    fn peek(&mut self, want: usize) -> core::result::Result<&[u8], LoadError>;
+    /// Mark `n` bytes read.
+    fn consume(&mut self, n: usize);
+    /// Decode the next value, which takes at most `max` bytes.
+    fn take<T: serde::de::DeserializeOwned>(
+        &mut self,
+        max: usize,
+    ) -> core::result::Result<T, LoadError> {
+        let bytes = self.peek(max)?;
+        let (v, rest) =
+            postcard::take_from_bytes::<T>(bytes).map_err(|_| RecordError::Malformed)?;
+        let used = bytes.len() - rest.len();
+        self.consume(used);
+        Ok(v)
+    }
+}
+
+impl Values for &[u8] {
+    fn peek(&mut self, _want: usize) -> core::result::Result<&[u8], LoadError> {
+        Ok(self)
+    }
+    fn consume(&mut self, n: usize) {
+        *self = self.get(n..).unwrap_or(&[]);
+    }
+}
+
+/// A dataset in a store, read through a [`DataReader`].
+struct Stored<'a, 'w, S> {
+    store: &'a mut S,
+    name: &'a str,
+    reader: DataReader<'w>,
+}
+
+impl<S: Storage> Values for Stored<'_, '_, S> {
+    fn peek(&mut self, want: usize) -> core::result::Result<&[u8], LoadError> {
+        Ok(self.reader.peek(self.store, self.name, want)?)
+    }
+    fn consume(&mut self, n: usize) {
+        self.reader.consume(n)
+    }
+}
+
+/// Read a sounding record from `src` into `out`, level by level, each checked as when
+/// typed in (`Profile::push`), with no second copy of the profile on the stack. Bytes
+/// after the record (a later firmware's additions) are left alone. On an error `out`
+/// holds no levels.
+fn load_from<const N: usize>(
+    src: &mut impl Values,
     out: &mut Profile<N>,
 ) -> core::result::Result<(), LoadError> {
     out.reset(StationInfo::default());
-    let body = crate::records::open_profile(bytes)?;
-    let (station, rest) =
-        postcard::take_from_bytes::<StationInfo>(body).map_err(|_| RecordError::Malformed)?;
-    let (count, mut rest) =
-        postcard::take_from_bytes::<u32>(rest).map_err(|_| RecordError::Malformed)?;
+    let head = src.peek(MAX_HEAD_BYTES)?;
+    let body = crate::records::open_profile(head)?;
+    let prefix = head.len() - body.len();
+    src.consume(prefix);
+    let station = src.take::<StationInfo>(MAX_HEAD_BYTES)?;
+    let count = src.take::<u32>(5)?;
     if count as usize > N {
         return Err(LoadError::TooManyLevels {
             levels: count,
@@ -235,27 +300,62 @@ pub fn load_profile<const N: usize>(
     }
     out.reset(station);
     for _ in 0..count {
-        let next = postcard::take_from_bytes::<Level>(rest)
-            .map_err(|_| RecordError::Malformed)
-            .and_then(|(level, more)| {
-                out.push(level).map_err(|_| RecordError::Invalid)?;
-                Ok(more)
-            });
-        match next {
-            Ok(more) => rest = more,
-            Err(e) => {
-                out.reset(StationInfo::default());
-                return Err(e.into());
-            }
+        let next = src
+            .take::<Level>(MAX_LEVEL_BYTES)
+            .and_then(|level| out.push(level).map_err(|_| RecordError::Invalid.into()));
+        if let Err(e) = next {
+            out.reset(StationInfo::default());
+            return Err(e);
         }
     }
     Ok(())
 }
 
-/// Summarise a stored sounding (its record in `bytes`) against the demo ridge.
-pub fn stored_view(bytes: &[u8]) -> core::result::Result<SoundingView, StoredError> {
+/// Read the sounding record at the start of `bytes` (a stored Sounding dataset) into
+/// `out`: see [`load_stored`], which reads it from the store.
+pub fn load_profile<const N: usize>(
+    mut bytes: &[u8],
+    out: &mut Profile<N>,
+) -> core::result::Result<(), LoadError> {
+    load_from(&mut bytes, out)
+}
+
+/// Read stored Sounding dataset `name` into `out` through a [`READ_WINDOW`]-byte window,
+/// so that the record is never whole in RAM: level by level, each checked as when typed
+/// in, then the rest of the dataset (a pushed report's text) read past and the CRC-32 of
+/// the whole checked. On an error `out` holds no levels.
+pub fn load_stored<S: Storage, const N: usize>(
+    store: &mut S,
+    name: &str,
+    out: &mut Profile<N>,
+) -> core::result::Result<(), LoadError> {
+    out.reset(StationInfo::default());
+    let mut window = [0u8; READ_WINDOW];
+    let reader = DataReader::open(store, name, &mut window)?;
+    if reader.head().kind != DataKind::Sounding {
+        return Err(LoadError::Store(StoreError::NotFound));
+    }
+    let mut src = Stored {
+        store,
+        name,
+        reader,
+    };
+    load_from(&mut src, out)?;
+    let Stored { store, reader, .. } = src;
+    if let Err(e) = reader.finish(store, name) {
+        out.reset(StationInfo::default());
+        return Err(e.into());
+    }
+    Ok(())
+}
+
+/// Summarise stored sounding `name` against the demo ridge.
+pub fn stored_view<S: Storage>(
+    store: &mut S,
+    name: &str,
+) -> core::result::Result<SoundingView, StoredError> {
     let mut profile = DeviceProfile::empty(StationInfo::default());
-    load_profile(bytes, &mut profile).map_err(StoredError::Load)?;
+    load_stored(store, name, &mut profile).map_err(StoredError::Load)?;
     view_in_place(&profile).map_err(StoredError::Core)
 }
 
@@ -511,7 +611,12 @@ mod tests {
             Err(LoadError::Record(RecordError::WrongType { .. }))
         ));
         // The summary of the stored record is the demo's.
-        assert_eq!(stored_view(&buf[..n]).unwrap(), demo_view().unwrap());
+        let mut store = crate::storage::MemStorage::new();
+        store.put(DataKind::Sounding, "DEMO", &buf[..n]).unwrap();
+        assert_eq!(
+            stored_view(&mut store, "DEMO").unwrap(),
+            demo_view().unwrap()
+        );
     }
 
     #[test]

@@ -126,6 +126,17 @@ pub enum StoreError {
     Corrupted,
     /// The results log is full: export it, then clear old entries.
     LogFull,
+    /// No streamed write is open (it was never begun, or another change to the store
+    /// ended it): the dataset must be sent again.
+    Interrupted,
+    /// A streamed part of `bytes` bytes where the store takes whole pieces of `part`
+    /// (only the last part of a dataset may be shorter).
+    PartSize {
+        /// Bytes in the part.
+        bytes: usize,
+        /// The piece size of the store ([`Storage::part_bytes`]).
+        part: usize,
+    },
 }
 
 impl core::fmt::Display for StoreError {
@@ -155,6 +166,18 @@ impl core::fmt::Display for StoreError {
             StoreError::LogFull => {
                 write!(f, "results log full: export it, then clear old entries")
             }
+            StoreError::Interrupted => {
+                write!(
+                    f,
+                    "the transfer was interrupted by another change: send it again"
+                )
+            }
+            StoreError::PartSize { bytes, part } => {
+                write!(
+                    f,
+                    "a piece of {bytes} bytes; the store takes pieces of {part}"
+                )
+            }
         }
     }
 }
@@ -170,7 +193,28 @@ pub fn valid_name(name: &str) -> bool {
             .all(|b| b.is_ascii_uppercase() || b.is_ascii_digit() || b == b'-' || b == b'_')
 }
 
+/// What the store keeps about a dataset besides its bytes.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct DataHead {
+    /// What it holds.
+    pub kind: DataKind,
+    /// Its length, bytes.
+    pub len: usize,
+    /// CRC-32 (ISO-HDLC, [`crate::flash::crc32`]) of all its bytes.
+    pub crc: u32,
+}
+
 /// A place to keep settings and named datasets.
+///
+/// A dataset can be read a piece at a time ([`Storage::read_at`]) and written as it
+/// arrives ([`Storage::put_begin`], [`Storage::put_part`], [`Storage::put_end`]), so that
+/// no caller needs a buffer the size of the largest dataset: the link's pieces go to the
+/// store as they come, and the Sounding task reads a stored sounding through a small
+/// window. One streamed write is open at a time: [`Storage::put_begin`] and every other
+/// change to the store (a put, rename, delete or settings write) end an open one, whose
+/// later parts are then refused with [`StoreError::Interrupted`]. A streamed dataset is
+/// seen by readers only once [`Storage::put_end`] has checked its CRC-32 and committed it.
 pub trait Storage {
     /// Why a settings write failed.
     type Error;
@@ -180,17 +224,66 @@ pub trait Storage {
     fn save_settings(&mut self, settings: &Settings) -> Result<(), Self::Error>;
     /// Every stored dataset.
     fn list(&mut self) -> Catalog;
-    /// Read dataset `name` into `buf`: its kind and length.
-    fn get(&mut self, name: &str, buf: &mut [u8]) -> Result<(DataKind, usize), StoreError>;
-    /// Store a new dataset; an existing name is [`StoreError::NameTaken`], never
-    /// overwritten.
-    fn put(&mut self, kind: DataKind, name: &str, bytes: &[u8]) -> Result<(), StoreError>;
+    /// Copy the bytes of dataset `name` from byte `offset` into `buf`, as many as fit
+    /// up to its end (none from an offset at or past the end): its head and how many
+    /// were copied. The CRC is not checked on a piece; a reader that takes every piece
+    /// checks it against [`DataHead::crc`] ([`Storage::get`], [`DataReader`]).
+    fn read_at(
+        &mut self,
+        name: &str,
+        offset: usize,
+        buf: &mut [u8],
+    ) -> Result<(DataHead, usize), StoreError>;
+    /// Largest dataset the store takes, bytes.
+    fn max_dataset_bytes(&self) -> usize;
+    /// The size of the pieces [`Storage::put_part`] takes: every part but the last of a
+    /// dataset is a whole number of them.
+    fn part_bytes(&self) -> usize;
+    /// Start a streamed write of a new dataset of `len` bytes: checks the name (an
+    /// existing name is [`StoreError::NameTaken`], never overwritten), the size and the
+    /// room, and ends any streamed write still open.
+    fn put_begin(&mut self, kind: DataKind, name: &str, len: usize) -> Result<(), StoreError>;
+    /// The next bytes of the open streamed write.
+    fn put_part(&mut self, bytes: &[u8]) -> Result<(), StoreError>;
+    /// Finish the open streamed write: once all `len` bytes are in and what the store
+    /// holds has CRC-32 `crc`, the dataset is stored; a CRC that differs is
+    /// [`StoreError::Damaged`] and nothing is stored. The write is closed either way.
+    fn put_end(&mut self, crc: u32) -> Result<(), StoreError>;
+    /// Drop the open streamed write, if any (nothing of it is kept).
+    fn put_cancel(&mut self);
     /// Give dataset `from` the name `to`.
     fn rename(&mut self, from: &str, to: &str) -> Result<(), StoreError>;
     /// Remove dataset `name`.
     fn delete(&mut self, name: &str) -> Result<(), StoreError>;
     /// Bytes free for datasets (each costs [`RECORD_HEADER`] besides its contents).
     fn free_bytes(&mut self) -> usize;
+
+    /// Read dataset `name` whole into `buf`, its CRC checked: its kind and length.
+    fn get(&mut self, name: &str, buf: &mut [u8]) -> Result<(DataKind, usize), StoreError> {
+        let (head, n) = self.read_at(name, 0, buf)?;
+        if n < head.len {
+            return Err(StoreError::TooBig {
+                bytes: head.len,
+                max: buf.len(),
+            });
+        }
+        if crate::flash::crc32(buf.get(..n).unwrap_or(&[])) != head.crc {
+            return Err(StoreError::Damaged);
+        }
+        Ok((head.kind, n))
+    }
+
+    /// Store a new dataset whole; an existing name is [`StoreError::NameTaken`], never
+    /// overwritten.
+    fn put(&mut self, kind: DataKind, name: &str, bytes: &[u8]) -> Result<(), StoreError> {
+        self.put_begin(kind, name, bytes.len())?;
+        // One part: the last part of a dataset may be of any length.
+        if let Err(e) = self.put_part(bytes) {
+            self.put_cancel();
+            return Err(e);
+        }
+        self.put_end(crate::flash::crc32(bytes))
+    }
 
     /// Entries in the results log, oldest first (a store without a log has none).
     fn log_len(&mut self) -> u32 {
@@ -205,6 +298,94 @@ pub trait Storage {
     }
 }
 
+/// A stored dataset read front to back through a small window, for a decoder that takes
+/// its values one by one: the whole dataset never needs to be in RAM. Reading to the end
+/// ([`DataReader::finish`]) checks its CRC-32.
+pub struct DataReader<'w> {
+    window: &'w mut [u8],
+    /// Unread bytes are `window[start..end]`.
+    start: usize,
+    end: usize,
+    /// Dataset offset of `window[end]`.
+    offset: usize,
+    head: DataHead,
+    digest: crc::Digest<'static, u32>,
+}
+
+impl<'w> DataReader<'w> {
+    /// Open dataset `name` for reading through `window` (its length bounds the largest
+    /// value [`DataReader::take`] can decode).
+    pub fn open<S: Storage>(
+        store: &mut S,
+        name: &str,
+        window: &'w mut [u8],
+    ) -> Result<Self, StoreError> {
+        let (head, n) = store.read_at(name, 0, window)?;
+        let mut digest = crate::flash::CRC32.digest();
+        digest.update(window.get(..n).unwrap_or(&[]));
+        Ok(DataReader {
+            window,
+            start: 0,
+            end: n,
+            offset: n,
+            head,
+            digest,
+        })
+    }
+
+    /// What the store keeps about the dataset.
+    pub fn head(&self) -> DataHead {
+        self.head
+    }
+
+    /// The unread bytes in the window, refilled from the store first when fewer than
+    /// `want` are left (fewer come back only at the dataset's end).
+    pub fn peek<S: Storage>(
+        &mut self,
+        store: &mut S,
+        name: &str,
+        want: usize,
+    ) -> Result<&[u8], StoreError> {
+        if self.end - self.start < want && self.offset < self.head.len {
+            self.window.copy_within(self.start..self.end, 0);
+            self.end -= self.start;
+            self.start = 0;
+            let (head, n) = store.read_at(name, self.offset, &mut self.window[self.end..])?;
+            if head != self.head {
+                // Changed under the reader (deleted and written again): not one dataset.
+                return Err(StoreError::Damaged);
+            }
+            self.digest.update(&self.window[self.end..self.end + n]);
+            self.end += n;
+            self.offset += n;
+        }
+        Ok(&self.window[self.start..self.end])
+    }
+
+    /// Mark `n` bytes of the window read.
+    pub fn consume(&mut self, n: usize) {
+        self.start = (self.start + n).min(self.end);
+    }
+
+    /// Read the rest of the dataset (a later firmware's additions, left undecoded) and
+    /// check the CRC-32 of the whole: [`StoreError::Damaged`] if it differs.
+    pub fn finish<S: Storage>(mut self, store: &mut S, name: &str) -> Result<(), StoreError> {
+        while self.offset < self.head.len {
+            self.start = self.end;
+            let want = self.window.len();
+            self.peek(store, name, want)?;
+            if self.end == self.start {
+                return Err(StoreError::Damaged);
+            }
+        }
+        if self.digest.finalize() == self.head.crc {
+            Ok(())
+        } else {
+            Err(StoreError::Damaged)
+        }
+    }
+}
+
 /// Storage in RAM, for the host and for tests; it holds the same bytes flash would.
 ///
 /// Datasets lie packed in one buffer of [`MEM_CAPACITY`] bytes, each as kind (1 byte),
@@ -216,6 +397,17 @@ pub struct MemStorage {
     data: [u8; MEM_CAPACITY],
     used: usize,
     writes: u32,
+    /// The streamed write open, its bytes going in after the last record.
+    filling: Option<Filling>,
+}
+
+/// A streamed write into [`MemStorage`].
+#[derive(Debug, Clone)]
+struct Filling {
+    kind: DataKind,
+    name: DataName,
+    len: usize,
+    done: usize,
 }
 
 impl Default for MemStorage {
@@ -225,6 +417,7 @@ impl Default for MemStorage {
             data: [0; MEM_CAPACITY],
             used: 0,
             writes: 0,
+            filling: None,
         }
     }
 }
@@ -339,6 +532,7 @@ impl Storage for MemStorage {
     }
 
     fn save_settings(&mut self, settings: &Settings) -> Result<(), Self::Error> {
+        self.filling = None;
         self.settings = Some(settings.to_bytes());
         self.wrote();
         Ok(())
@@ -359,55 +553,114 @@ impl Storage for MemStorage {
         c
     }
 
-    fn get(&mut self, name: &str, buf: &mut [u8]) -> Result<(DataKind, usize), StoreError> {
+    fn read_at(
+        &mut self,
+        name: &str,
+        offset: usize,
+        buf: &mut [u8],
+    ) -> Result<(DataHead, usize), StoreError> {
         let r = self.find(name).ok_or(StoreError::NotFound)?;
-        let max = buf.len();
-        let out = buf
-            .get_mut(..r.len)
-            .ok_or(StoreError::TooBig { bytes: r.len, max })?;
         let body = self.data.get(r.body()).ok_or(StoreError::Damaged)?;
-        out.copy_from_slice(body);
-        Ok((r.kind, r.len))
+        let head = DataHead {
+            kind: r.kind,
+            len: r.len,
+            crc: crate::flash::crc32(body),
+        };
+        let from = body.get(offset..).unwrap_or(&[]);
+        let n = from.len().min(buf.len());
+        buf[..n].copy_from_slice(&from[..n]);
+        Ok((head, n))
     }
 
-    fn put(&mut self, kind: DataKind, name: &str, bytes: &[u8]) -> Result<(), StoreError> {
+    fn max_dataset_bytes(&self) -> usize {
+        MEM_CAPACITY - RECORD_HEADER
+    }
+
+    fn part_bytes(&self) -> usize {
+        // Any size will do in RAM.
+        1
+    }
+
+    fn put_begin(&mut self, kind: DataKind, name: &str, len: usize) -> Result<(), StoreError> {
+        self.filling = None;
         if !valid_name(name) {
             return Err(StoreError::BadName);
         }
         if self.find(name).is_some() {
             return Err(StoreError::NameTaken);
         }
-        if bytes.len() > u16::MAX as usize {
+        if len > self.max_dataset_bytes() {
             return Err(StoreError::TooBig {
-                bytes: bytes.len(),
-                max: u16::MAX as usize,
+                bytes: len,
+                max: self.max_dataset_bytes(),
             });
         }
         if self.count() >= MAX_DATASETS {
             return Err(StoreError::TooMany { max: MAX_DATASETS });
         }
-        let need = RECORD_HEADER + bytes.len();
+        let need = RECORD_HEADER + len;
         let free = self.free_bytes();
         if need > free {
             return Err(StoreError::Full { need, free });
         }
+        self.filling = Some(Filling {
+            kind,
+            name: name_of(name.as_bytes()),
+            len,
+            done: 0,
+        });
+        Ok(())
+    }
+
+    fn put_part(&mut self, bytes: &[u8]) -> Result<(), StoreError> {
+        let f = self.filling.as_mut().ok_or(StoreError::Interrupted)?;
+        if f.done + bytes.len() > f.len {
+            return Err(StoreError::TooBig {
+                bytes: f.done + bytes.len(),
+                max: f.len,
+            });
+        }
+        let at = self.used + RECORD_HEADER + f.done;
+        let dst = self
+            .data
+            .get_mut(at..at + bytes.len())
+            .ok_or(StoreError::Damaged)?;
+        dst.copy_from_slice(bytes);
+        f.done += bytes.len();
+        Ok(())
+    }
+
+    fn put_end(&mut self, crc: u32) -> Result<(), StoreError> {
+        let f = self.filling.take().ok_or(StoreError::Interrupted)?;
+        if f.done != f.len {
+            return Err(StoreError::Interrupted);
+        }
         let at = self.used;
-        let len = (bytes.len() as u16).to_le_bytes();
+        let body = self
+            .data
+            .get(at + RECORD_HEADER..at + RECORD_HEADER + f.len)
+            .ok_or(StoreError::Damaged)?;
+        if crate::flash::crc32(body) != crc {
+            return Err(StoreError::Damaged);
+        }
+        let len = (f.len as u16).to_le_bytes();
         if let Some(h) = self.data.get_mut(at..at + RECORD_HEADER) {
-            h[0] = kind.to_byte();
+            h[0] = f.kind.to_byte();
             h[1 + NAME_LEN] = len[0];
             h[2 + NAME_LEN] = len[1];
         }
-        self.write_name(at, name);
-        if let Some(b) = self.data.get_mut(at + RECORD_HEADER..at + need) {
-            b.copy_from_slice(bytes);
-        }
-        self.used = at + need;
+        self.write_name(at, &f.name);
+        self.used = at + RECORD_HEADER + f.len;
         self.wrote();
         Ok(())
     }
 
+    fn put_cancel(&mut self) {
+        self.filling = None;
+    }
+
     fn rename(&mut self, from: &str, to: &str) -> Result<(), StoreError> {
+        self.filling = None;
         if !valid_name(to) {
             return Err(StoreError::BadName);
         }
@@ -424,6 +677,7 @@ impl Storage for MemStorage {
     }
 
     fn delete(&mut self, name: &str) -> Result<(), StoreError> {
+        self.filling = None;
         let r = self.find(name).ok_or(StoreError::NotFound)?;
         let end = r.end();
         self.data.copy_within(end..self.used, r.start);

@@ -119,7 +119,8 @@ fn a_session_lists_puts_gets_and_deletes() {
     );
     assert!(
         hello.starts_with(&format!(
-            "Hello {{ version: {PROTOCOL_VERSION}, max_dataset: 2048"
+            "Hello {{ version: {PROTOCOL_VERSION}, max_dataset: {}",
+            st.max_dataset_bytes()
         )),
         "{hello}"
     );
@@ -257,9 +258,10 @@ fn refused_puts_store_nothing() {
         ask(&mut dev, &mut st, 3, &begin("K", 99, 10, 0)),
         err(LinkError::BadKind)
     );
+    let max = st.max_dataset_bytes() as u32;
     assert_eq!(
-        ask(&mut dev, &mut st, 4, &begin("K", 2, 601, 0)),
-        err(LinkError::TooBig { max: 600 })
+        ask(&mut dev, &mut st, 4, &begin("K", 2, max + 1, 0)),
+        err(LinkError::TooBig { max })
     );
     // Data without a put, commit without a put.
     assert_eq!(
@@ -359,7 +361,8 @@ fn refused_puts_store_nothing() {
         ask(&mut dev, &mut st, 16, &Request::PutCommit),
         format!("Stored {{ bytes: 500, crc: {} }}", crc32(&data))
     );
-    // A store that is full says so in the link's words.
+    // A store that is full says so in the link's words, at the PutBegin: nothing is
+    // sent in vain.
     let mut full = MemStorage::new();
     full.put(DataKind::Sounding, "BIG", &[0u8; 4000]).unwrap();
     let mut staging = [0u8; 600];
@@ -372,7 +375,7 @@ fn refused_puts_store_nothing() {
             version: PROTOCOL_VERSION,
         },
     );
-    let r = push(&mut dev, &mut full, "K", &data);
+    let r = ask(&mut dev, &mut full, 2, &begin("K", 2, 500, crc32(&data)));
     let free = full.free_bytes();
     let need = match full.put(DataKind::Sounding, "K", &data) {
         Err(StoreError::Full { need, .. }) => need,

@@ -10,10 +10,6 @@ use std::io::{Read, Write};
 use std::os::unix::net::{UnixListener, UnixStream};
 use std::path::{Path, PathBuf};
 
-/// Largest dataset the simulated device takes in one push, bytes (a 256-level sounding
-/// record is under 14 kB).
-pub const DEVICE_STAGING: usize = 16 * 1024;
-
 /// Arguments of `leeward device`.
 #[derive(Args, Debug)]
 pub struct DeviceArgs {
@@ -99,7 +95,7 @@ fn serve<S: Storage>(socket: &Path, store: &mut S) -> Result<String, CliError> {
     let listener = UnixListener::bind(socket)
         .map_err(|e| CliError::input(format!("cannot listen on {}: {e}", socket.display())))?;
     eprintln!("leeward device: serving the link on {}", socket.display());
-    let mut staging = vec![0u8; DEVICE_STAGING];
+    let mut staging = [0u8; leeward_firmware::link::STAGING_BYTES];
     let mut server = LinkServer::new(&mut staging);
     for conn in listener.incoming() {
         let mut stream = match conn {
@@ -109,7 +105,7 @@ fn serve<S: Storage>(socket: &Path, store: &mut S) -> Result<String, CliError> {
                 continue;
             }
         };
-        server.reset();
+        server.reset(store);
         let mut buf = [0u8; 1024];
         loop {
             let n = match stream.read(&mut buf) {

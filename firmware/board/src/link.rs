@@ -75,7 +75,7 @@ impl UsbLink {
         if dev.state() != UsbDeviceState::Configured {
             // Unplugged, reset or not yet enumerated: the session is over.
             if *open {
-                server.reset();
+                server.reset(store);
                 pump.reset();
                 *open = false;
             }
@@ -84,7 +84,7 @@ impl UsbLink {
             // A host opening the port raises DTR: a new session starts clean.
             let dtr = serial.dtr();
             if dtr && !*open {
-                server.reset();
+                server.reset(store);
                 pump.reset();
             }
             *open = dtr;

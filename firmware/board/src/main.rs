@@ -54,8 +54,8 @@ use leeward_board_logic::keypad::{self, Debouncer, COLS, ROWS};
 use leeward_board_logic::memlcd::{timing, MemoryLcd};
 use leeward_board_logic::pump::Watched;
 use leeward_board_logic::recovery::{Choice, Prompt};
-use leeward_firmware::flash::{FlashStore, TwoFlash, MAX_DATASET_BYTES};
-use leeward_firmware::link::LinkServer;
+use leeward_firmware::flash::{FlashStore, TwoFlash};
+use leeward_firmware::link::{LinkServer, STAGING_BYTES};
 use leeward_firmware::{framebuffer::FrameBuffer, App, Effect, Key};
 
 /// The store on the internal flash: the map in sectors 1-3, the log in sector 7.
@@ -368,7 +368,7 @@ fn main() -> ! {
         );
         let (Some(ep), Some(staging)) = (
             cortex_m::singleton!(: [u32; EP_WORDS] = [0; EP_WORDS]),
-            cortex_m::singleton!(: [u8; MAX_DATASET_BYTES] = [0; MAX_DATASET_BYTES]),
+            cortex_m::singleton!(: [u8; STAGING_BYTES] = [0; STAGING_BYTES]),
         ) else {
             halt("USB buffers already made");
         };

@@ -43,7 +43,7 @@ use self::blocking::{block_on, Async};
 use crate::records::{LogEntry, Record};
 use crate::settings::Settings;
 use crate::storage::{
-    valid_name, Catalog, DataInfo, DataKind, DataName, Storage, StoreError, MAX_DATASETS,
+    valid_name, Catalog, DataHead, DataInfo, DataKind, DataName, Storage, StoreError, MAX_DATASETS,
 };
 
 /// Most bytes of dataset per chunk (less on flash with small pages).
@@ -65,7 +65,8 @@ pub const LOG_WARN_DIVISOR: u32 = 8;
 
 type NoCache<K> = Cache<Uncached, Uncached, Uncached, K>;
 
-const CRC32: crc::Crc<u32> = crc::Crc::<u32>::new(&crc::CRC_32_ISO_HDLC);
+/// The CRC-32 of datasets (ISO-HDLC, as in zlib and Ethernet).
+pub static CRC32: crc::Crc<u32> = crc::Crc::<u32>::new(&crc::CRC_32_ISO_HDLC);
 
 const SETTINGS_KEY: u32 = 1;
 const COMMIT_TAG: u8 = 0xC1;
@@ -245,7 +246,21 @@ pub struct FlashStore<A> {
     health: Health,
     next_seq: u32,
     log_entries: u32,
+    /// The streamed write open ([`Storage::put_begin`]).
+    filling: Option<Filling>,
     buf: [u8; BUF_BYTES],
+}
+
+/// A streamed write: generation `gen` of slot `slot`, `done` of `len` bytes written
+/// as chunks, no commit yet.
+#[derive(Debug, Clone)]
+struct Filling {
+    slot: usize,
+    gen: u32,
+    kind: DataKind,
+    name: DataName,
+    len: usize,
+    done: usize,
 }
 
 /// Why a store could not be set up on a flash (a wiring mistake, not damage).
@@ -355,6 +370,7 @@ impl<A: Areas> FlashStore<A> {
             health: Health::OK,
             next_seq: 0,
             log_entries: 0,
+            filling: None,
             buf: [0; BUF_BYTES],
         };
         s.boot_map();
@@ -587,57 +603,93 @@ impl<A: Areas> FlashStore<A> {
         bytes: &[u8],
     ) -> Result<Commit, StoreError> {
         let chunk = self.chunk_len();
-        let mut cname = DataName::new();
-        cname.push_str(name).map_err(|_| StoreError::BadName)?;
-        let commit = Commit {
-            kind: kind.to_byte(),
-            name: cname,
-            gen,
-            len: bytes.len() as u32,
-            crc: crc32(bytes),
-            chunk: chunk as u16,
-        };
-        let mut value = [0u8; CHUNK_HEAD + CHUNK_BYTES];
+        let commit = self.commit_for(gen, kind, name, bytes.len(), crc32(bytes))?;
         for (k, part) in bytes.chunks(chunk).enumerate() {
-            value[..CHUNK_HEAD].copy_from_slice(&gen.to_le_bytes());
-            value[CHUNK_HEAD..CHUNK_HEAD + part.len()].copy_from_slice(part);
-            let v = &value[..CHUNK_HEAD + part.len()];
-            store(
-                self.flash.map(),
-                &self.map_range,
-                &mut self.buf,
-                chunk_key(i, gen, k),
-                v,
-            )?;
+            self.write_chunk(i, gen, k, part)?;
         }
         self.write_commit(i, &commit)?;
         Ok(commit)
     }
 
+    /// The commit record of generation `gen` of a dataset.
+    fn commit_for(
+        &self,
+        gen: u32,
+        kind: DataKind,
+        name: &str,
+        len: usize,
+        crc: u32,
+    ) -> Result<Commit, StoreError> {
+        let mut cname = DataName::new();
+        cname.push_str(name).map_err(|_| StoreError::BadName)?;
+        Ok(Commit {
+            kind: kind.to_byte(),
+            name: cname,
+            gen,
+            len: len as u32,
+            crc,
+            chunk: self.chunk_len() as u16,
+        })
+    }
+
+    /// Write chunk `k` of generation `gen` in slot `i`.
+    fn write_chunk(&mut self, i: usize, gen: u32, k: usize, part: &[u8]) -> Result<(), StoreError> {
+        let mut value = [0u8; CHUNK_HEAD + CHUNK_BYTES];
+        let v = value
+            .get_mut(..CHUNK_HEAD + part.len())
+            .ok_or(StoreError::PartSize {
+                bytes: part.len(),
+                part: CHUNK_BYTES,
+            })?;
+        v[..CHUNK_HEAD].copy_from_slice(&gen.to_le_bytes());
+        v[CHUNK_HEAD..].copy_from_slice(part);
+        store(
+            self.flash.map(),
+            &self.map_range,
+            &mut self.buf,
+            chunk_key(i, gen, k),
+            v,
+        )
+    }
+
+    /// End the streamed write open, if any, burying what it wrote (best effort: its
+    /// chunks are never read, since no commit points at them).
+    fn end_filling(&mut self) {
+        if let Some(f) = self.filling.take() {
+            let chunks = f.done.div_ceil(self.chunk_len());
+            let _ = self.bury(f.slot, f.gen, chunks);
+        }
+    }
+
     /// Overwrite the chunks of `c` with tombstones (frees their space; best effort:
     /// leftovers are never read, since no commit points at them).
     fn bury_chunks(&mut self, i: usize, c: &Commit) -> Result<(), StoreError> {
-        for k in 0..c.chunks().min(MAX_CHUNKS) {
-            let key = chunk_key(i, c.gen, k);
+        self.bury(i, c.gen, c.chunks())
+    }
+
+    /// Overwrite the first `chunks` chunks of generation `gen` in slot `i` with
+    /// tombstones.
+    fn bury(&mut self, i: usize, gen: u32, chunks: usize) -> Result<(), StoreError> {
+        for k in 0..chunks.min(MAX_CHUNKS) {
             store(
                 self.flash.map(),
                 &self.map_range,
                 &mut self.buf,
-                key,
+                chunk_key(i, gen, k),
                 &[TOMBSTONE],
             )?;
         }
         Ok(())
     }
 
-    fn check_new(&mut self, bytes: &[u8]) -> Result<(), StoreError> {
-        if bytes.len() > MAX_DATASET_BYTES {
+    fn check_new(&mut self, len: usize) -> Result<(), StoreError> {
+        if len > MAX_DATASET_BYTES {
             return Err(StoreError::TooBig {
-                bytes: bytes.len(),
+                bytes: len,
                 max: MAX_DATASET_BYTES,
             });
         }
-        let need = self.dataset_cost(bytes.len());
+        let need = self.dataset_cost(len);
         let free = self.free_flash();
         if need > free {
             return Err(StoreError::Full { need, free });
@@ -665,7 +717,8 @@ impl<A: Areas> FlashStore<A> {
         let Some(i) = self.find(name) else {
             return self.put(kind, name, bytes);
         };
-        self.check_new(bytes)?;
+        self.end_filling();
+        self.check_new(bytes.len())?;
         let old = match &self.slots[i] {
             Slot::Used(c) | Slot::Damaged(c) => c.clone(),
             _ => return Err(StoreError::NotFound),
@@ -682,6 +735,7 @@ impl<A: Areas> FlashStore<A> {
     /// Erase the map area (settings and every dataset): the recovery path when
     /// [`Health::map`] is [`AreaState::Unreadable`]. Only on the user's explicit request.
     pub fn erase_datasets(&mut self) -> Result<(), StoreError> {
+        self.filling = None;
         let mut m = map(self.flash.map(), &self.map_range)?;
         block_on(m.erase_all()).map_err(ss_err)?;
         self.boot_map();
@@ -834,6 +888,7 @@ impl<A: Areas> Storage for FlashStore<A> {
     }
 
     fn save_settings(&mut self, settings: &Settings) -> Result<(), StoreError> {
+        self.end_filling();
         self.map_ok()?;
         let mut bytes = [0u8; 32];
         let n = settings
@@ -867,24 +922,66 @@ impl<A: Areas> Storage for FlashStore<A> {
         c
     }
 
-    fn get(&mut self, name: &str, buf: &mut [u8]) -> Result<(DataKind, usize), StoreError> {
+    fn read_at(
+        &mut self,
+        name: &str,
+        offset: usize,
+        buf: &mut [u8],
+    ) -> Result<(DataHead, usize), StoreError> {
         self.map_ok()?;
         let i = self.find(name).ok_or(StoreError::NotFound)?;
         let c = match &self.slots[i] {
             Slot::Used(c) => c.clone(),
             _ => return Err(StoreError::Damaged),
         };
-        let kind = DataKind::from_byte(c.kind).ok_or(StoreError::Damaged)?;
-        let len = c.len as usize;
-        let max = buf.len();
-        let out = buf
-            .get_mut(..len)
-            .ok_or(StoreError::TooBig { bytes: len, max })?;
-        self.read_chunks(i, &c, Some(out))?;
-        Ok((kind, len))
+        let head = DataHead {
+            kind: DataKind::from_byte(c.kind).ok_or(StoreError::Damaged)?,
+            len: c.len as usize,
+            crc: c.crc,
+        };
+        let chunk = c.chunk as usize;
+        if chunk == 0 || chunk > CHUNK_BYTES {
+            return Err(StoreError::Damaged);
+        }
+        // Chunk by chunk from the one holding `offset`, each checked to be of this
+        // generation and of its length; the whole dataset's CRC was checked at boot.
+        let mut at = offset;
+        let mut n = 0;
+        while n < buf.len() && at < head.len {
+            let k = at / chunk;
+            let want = chunk.min(head.len - k * chunk);
+            let got = fetch(
+                self.flash.map(),
+                &self.map_range,
+                &mut self.buf,
+                chunk_key(i, c.gen, k),
+            )?
+            .ok_or(StoreError::Damaged)?;
+            let (g, data) = got
+                .split_at_checked(CHUNK_HEAD)
+                .ok_or(StoreError::Damaged)?;
+            if g != c.gen.to_le_bytes() || data.len() != want {
+                return Err(StoreError::Damaged);
+            }
+            let from = &data[at - k * chunk..];
+            let m = from.len().min(buf.len() - n);
+            buf[n..n + m].copy_from_slice(&from[..m]);
+            n += m;
+            at += m;
+        }
+        Ok((head, n))
     }
 
-    fn put(&mut self, kind: DataKind, name: &str, bytes: &[u8]) -> Result<(), StoreError> {
+    fn max_dataset_bytes(&self) -> usize {
+        MAX_DATASET_BYTES
+    }
+
+    fn part_bytes(&self) -> usize {
+        self.chunk_len()
+    }
+
+    fn put_begin(&mut self, kind: DataKind, name: &str, len: usize) -> Result<(), StoreError> {
+        self.end_filling();
         self.map_ok()?;
         if !valid_name(name) {
             return Err(StoreError::BadName);
@@ -897,19 +994,86 @@ impl<A: Areas> Storage for FlashStore<A> {
             .iter()
             .position(|s| matches!(s, Slot::Free { .. }))
             .ok_or(StoreError::TooMany { max: MAX_DATASETS })?;
-        self.check_new(bytes)?;
+        self.check_new(len)?;
         let gen = match self.slots[i] {
             Slot::Free { gen } => gen.wrapping_add(1),
             _ => 1,
         };
-        let commit = self
-            .write_generation(i, gen, kind, name, bytes)
-            .map_err(|e| self.full(e, bytes.len()))?;
-        self.slots[i] = Slot::Used(commit);
+        let mut dname = DataName::new();
+        dname.push_str(name).map_err(|_| StoreError::BadName)?;
+        self.filling = Some(Filling {
+            slot: i,
+            gen,
+            kind,
+            name: dname,
+            len,
+            done: 0,
+        });
         Ok(())
     }
 
+    fn put_part(&mut self, bytes: &[u8]) -> Result<(), StoreError> {
+        let f = self.filling.clone().ok_or(StoreError::Interrupted)?;
+        let chunk = self.chunk_len();
+        if f.done + bytes.len() > f.len {
+            self.end_filling();
+            return Err(StoreError::TooBig {
+                bytes: f.done + bytes.len(),
+                max: f.len,
+            });
+        }
+        let mut done = f.done;
+        for part in bytes.chunks(chunk) {
+            let wrote = if part.len() == chunk || done + part.len() == f.len {
+                self.write_chunk(f.slot, f.gen, done / chunk, part)
+            } else {
+                Err(StoreError::PartSize {
+                    bytes: part.len(),
+                    part: chunk,
+                })
+            };
+            if let Err(e) = wrote {
+                if let Some(open) = self.filling.as_mut() {
+                    open.done = done;
+                }
+                self.end_filling();
+                return Err(self.full(e, f.len));
+            }
+            done += part.len();
+        }
+        if let Some(open) = self.filling.as_mut() {
+            open.done = done;
+        }
+        Ok(())
+    }
+
+    fn put_end(&mut self, crc: u32) -> Result<(), StoreError> {
+        let f = self.filling.clone().ok_or(StoreError::Interrupted)?;
+        if f.done != f.len {
+            self.end_filling();
+            return Err(StoreError::Interrupted);
+        }
+        let commit = self.commit_for(f.gen, f.kind, &f.name, f.len, crc)?;
+        // What the flash holds is checked against the CRC before it is committed.
+        if let Err(e) = self.read_chunks(f.slot, &commit, None) {
+            self.end_filling();
+            return Err(e);
+        }
+        if let Err(e) = self.write_commit(f.slot, &commit) {
+            self.end_filling();
+            return Err(self.full(e, f.len));
+        }
+        self.filling = None;
+        self.slots[f.slot] = Slot::Used(commit);
+        Ok(())
+    }
+
+    fn put_cancel(&mut self) {
+        self.end_filling();
+    }
+
     fn rename(&mut self, from: &str, to: &str) -> Result<(), StoreError> {
+        self.end_filling();
         self.map_ok()?;
         if !valid_name(to) {
             return Err(StoreError::BadName);
@@ -938,6 +1102,7 @@ impl<A: Areas> Storage for FlashStore<A> {
     }
 
     fn delete(&mut self, name: &str) -> Result<(), StoreError> {
+        self.end_filling();
         self.map_ok()?;
         let i = self.find(name).ok_or(StoreError::NotFound)?;
         let c = match &self.slots[i] {

@@ -8,9 +8,10 @@
 //!
 //! The host sends one request and waits for its reply; every request carries a sequence
 //! number that the reply repeats. A damaged, truncated, oversized or unknown frame gets an
-//! error reply and changes nothing. A dataset is sent in chunks and stored only when all of
-//! it has arrived and its CRC-32 matches; the device then reads it back and reports the
-//! stored dataset's CRC-32 for the host to compare.
+//! error reply and changes nothing. A dataset is sent in chunks, which go to the store as
+//! they arrive; it is stored only when all of it has arrived and its CRC-32 matches; the
+//! device then reads it back and reports the stored dataset's CRC-32 for the host to
+//! compare.
 
 pub mod frame;
 pub mod protocol;
@@ -18,4 +19,4 @@ pub mod server;
 
 pub use frame::{crc32, decode, encode, FrameError, Splitter, Splitting};
 pub use protocol::{LinkError, Reply, Request, PROTOCOL_VERSION};
-pub use server::LinkServer;
+pub use server::{LinkServer, STAGING_BYTES};

@@ -271,6 +271,8 @@ impl From<crate::storage::StoreError> for LinkError {
             S::Damaged | S::Corrupted => LinkError::StoreDamaged,
             S::Flash => LinkError::StoreFailed,
             S::LogFull => LinkError::LogFull,
+            S::Interrupted => LinkError::NoPut,
+            S::PartSize { .. } => LinkError::StoreFailed,
         }
     }
 }

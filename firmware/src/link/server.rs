@@ -1,23 +1,30 @@
 //! The device side of the link: bytes in, replies out, datasets through the
 //! [`Storage`] trait.
 //!
-//! A dataset being sent is assembled in a buffer the caller lends (its length is the
-//! largest dataset the device takes) and handed to the store only when all of it has
-//! arrived and its CRC-32 matches the one announced; a damaged or missing piece leaves
-//! the store untouched.
+//! A dataset being sent goes to the store as it arrives, a piece of the store's size
+//! ([`Storage::part_bytes`]) at a time, through a buffer the caller lends (one such
+//! piece; it also holds a piece being read). The store makes the dataset visible only
+//! when all of it has arrived and what it holds has the CRC-32 announced: a damaged or
+//! missing piece, or a session that ends half way, leaves the store as it was.
 
-use super::frame::{self, crc32, FrameError, Splitter, Splitting, MAX_WIRE, REPLY, REQUEST};
+use super::frame::{self, FrameError, Splitter, Splitting, MAX_WIRE, REPLY, REQUEST};
 use super::protocol::{LinkError, Reply, Request, MAX_CHUNK, PROTOCOL_VERSION};
-use crate::storage::{valid_name, DataKind, DataName, Storage};
+use crate::storage::{DataKind, DataName, Storage, StoreError};
+
+/// Bytes of the staging buffer [`LinkServer::new`] wants: one part of the flash store
+/// ([`crate::flash::CHUNK_BYTES`]), which is more than a link piece ([`MAX_CHUNK`]).
+pub const STAGING_BYTES: usize = crate::flash::CHUNK_BYTES;
+const _: () = assert!(STAGING_BYTES >= MAX_CHUNK);
 
 /// A dataset being received.
 #[derive(Debug, Clone)]
 struct Put {
     name: DataName,
-    kind: DataKind,
     total: u32,
     crc: u32,
     next: u32,
+    /// Bytes after the last part handed to the store, waiting in the staging buffer.
+    held: usize,
 }
 
 /// The link's device side.
@@ -34,7 +41,9 @@ pub struct LinkServer<'b> {
 pub const UNKNOWN_SEQ: u16 = u16::MAX;
 
 impl<'b> LinkServer<'b> {
-    /// A server assembling datasets in `staging` (its length is the largest dataset taken).
+    /// A server with `staging` for a piece of a dataset: at least the store's
+    /// [`Storage::part_bytes`] (for a dataset being sent) and [`MAX_CHUNK`] (for one
+    /// being read).
     pub fn new(staging: &'b mut [u8]) -> Self {
         LinkServer {
             splitter: Splitter::new(),
@@ -52,11 +61,18 @@ impl<'b> LinkServer<'b> {
     }
 
     /// Forget the session (the host went away): the next request must be a Hello, and a
-    /// dataset half sent is dropped.
-    pub fn reset(&mut self) {
+    /// dataset half sent is dropped from `store`.
+    pub fn reset<S: Storage>(&mut self, store: &mut S) {
         self.splitter.reset();
-        self.put = None;
+        self.drop_put(store);
         self.hello = false;
+    }
+
+    /// Drop the dataset being sent, if any, here and in the store.
+    fn drop_put<S: Storage>(&mut self, store: &mut S) {
+        if self.put.take().is_some() {
+            store.put_cancel();
+        }
     }
 
     /// Take bytes from the serial port; each complete frame is answered through `send`
@@ -120,13 +136,12 @@ impl<'b> LinkServer<'b> {
                 offset,
                 len,
             }) => {
-                let start = offset as usize;
                 let r = Reply::Chunk {
                     total,
                     crc,
                     kind,
                     offset,
-                    bytes: self.staging.get(start..start + len).unwrap_or(&[]),
+                    bytes: self.staging.get(..len).unwrap_or(&[]),
                 };
                 send_reply(&mut self.tx, seq, &r, send);
             }
@@ -170,10 +185,10 @@ impl<'b> LinkServer<'b> {
                 });
             }
             self.hello = true;
-            self.put = None;
+            self.drop_put(store);
             return Ok(Answer::Plain(Reply::Hello {
                 version: PROTOCOL_VERSION,
-                max_dataset: len_u32(self.staging.len()),
+                max_dataset: len_u32(store.max_dataset_bytes()),
                 firmware: env!("CARGO_PKG_VERSION"),
             }));
         }
@@ -200,22 +215,20 @@ impl<'b> LinkServer<'b> {
                 })
             }
             Request::Get { name, offset } => {
-                // The dataset is read whole into the staging buffer (and a put in
-                // progress is dropped: the host does one thing at a time).
-                self.put = None;
-                let (kind, n) = store.get(name, self.staging)?;
-                let crc = crc32(&self.staging[..n]);
-                let total = len_u32(n);
-                if offset > total {
+                // The piece is read into the staging buffer (and a put in progress is
+                // dropped: the host does one thing at a time).
+                self.drop_put(store);
+                let room = self.staging.len().min(MAX_CHUNK);
+                let (head, n) = store.read_at(name, offset as usize, &mut self.staging[..room])?;
+                if offset as usize > head.len {
                     return Err(LinkError::OutOfOrder { next: 0 });
                 }
-                let len = (n - offset as usize).min(MAX_CHUNK);
                 Ok(Answer::Chunk {
-                    total,
-                    crc,
-                    kind: kind.to_byte(),
+                    total: len_u32(head.len),
+                    crc: head.crc,
+                    kind: head.kind.to_byte(),
                     offset,
-                    len,
+                    len: n,
                 })
             }
             Request::PutBegin {
@@ -224,27 +237,21 @@ impl<'b> LinkServer<'b> {
                 total,
                 crc,
             } => {
-                self.put = None;
-                if !valid_name(name) {
-                    return Err(LinkError::BadName);
-                }
+                self.drop_put(store);
                 let kind = DataKind::from_byte(kind).ok_or(LinkError::BadKind)?;
-                if total as usize > self.staging.len() {
-                    return Err(LinkError::TooBig {
-                        max: len_u32(self.staging.len()),
-                    });
+                if unit(store, self.staging) == 0 {
+                    // A wiring mistake: the staging buffer lent is too small for the store.
+                    return Err(LinkError::StoreFailed);
                 }
-                if store.list().iter().any(|d| d.name.as_str() == name) {
-                    return Err(LinkError::NameTaken);
-                }
+                store.put_begin(kind, name, total as usize)?;
                 let mut n = DataName::new();
                 let _ = n.push_str(name);
                 self.put = Some(Put {
                     name: n,
-                    kind,
                     total,
                     crc,
                     next: 0,
+                    held: 0,
                 });
                 Ok(Answer::Plain(Reply::Ready { next: 0 }))
             }
@@ -261,9 +268,15 @@ impl<'b> LinkServer<'b> {
                 if end > put.total as usize || bytes.len() > MAX_CHUNK {
                     return Err(LinkError::TooBig { max: put.total });
                 }
-                self.staging[offset as usize..end].copy_from_slice(bytes);
-                put.next = len_u32(end);
-                Ok(Answer::Plain(Reply::Ready { next: put.next }))
+                let next = len_u32(end);
+                let last = next == put.total;
+                if let Err(e) = hand_over(put, bytes, last, self.staging, store) {
+                    self.put = None;
+                    store.put_cancel();
+                    return Err(e.into());
+                }
+                put.next = next;
+                Ok(Answer::Plain(Reply::Ready { next }))
             }
             Request::PutCommit => {
                 let put = self.put.take().ok_or(LinkError::NoPut)?;
@@ -273,25 +286,22 @@ impl<'b> LinkServer<'b> {
                     self.put = Some(put);
                     return Err(LinkError::Incomplete { got, total });
                 }
-                let data = &self.staging[..put.total as usize];
-                if crc32(data) != put.crc {
-                    return Err(LinkError::CrcMismatch);
+                match store.put_end(put.crc) {
+                    Ok(()) => {}
+                    Err(StoreError::Damaged) => return Err(LinkError::CrcMismatch),
+                    Err(e) => return Err(e.into()),
                 }
-                store.put(put.kind, &put.name, data)?;
                 // Read it back: the host compares what the store holds, not what arrived.
-                let (_, n) = store.get(&put.name, self.staging)?;
-                Ok(Answer::Plain(Reply::Stored {
-                    bytes: len_u32(n),
-                    crc: crc32(&self.staging[..n]),
-                }))
+                let (bytes, crc) = read_back(store, &put.name, self.staging)?;
+                Ok(Answer::Plain(Reply::Stored { bytes, crc }))
             }
             Request::Delete { name } => {
-                self.put = None;
+                self.drop_put(store);
                 store.delete(name)?;
                 Ok(Answer::Plain(Reply::Done))
             }
             Request::Log { index } => {
-                self.put = None;
+                self.drop_put(store);
                 let count = store.log_len();
                 let n = store.log_entry(index, self.staging)?;
                 Ok(Answer::Log { count, len: n })
@@ -334,6 +344,68 @@ enum Answer {
 fn send_reply(tx: &mut [u8], seq: u16, r: &Reply<'_>, send: &mut impl FnMut(&[u8])) {
     if let Ok(w) = frame::encode(REPLY, seq, r, tx) {
         send(w);
+    }
+}
+
+/// Bytes handed to the store at a time: the most whole store parts that `staging`
+/// holds (0 when not one does).
+fn unit<S: Storage>(store: &S, staging: &[u8]) -> usize {
+    let part = store.part_bytes().max(1);
+    staging.len() / part * part
+}
+
+/// Copy `bytes` after the held ones in `staging` and hand each [`unit`] to `store`; with
+/// `last`, the remainder too.
+fn hand_over<S: Storage>(
+    put: &mut Put,
+    bytes: &[u8],
+    last: bool,
+    staging: &mut [u8],
+    store: &mut S,
+) -> Result<(), StoreError> {
+    let part = unit(store, staging);
+    if part == 0 {
+        return Err(StoreError::PartSize {
+            bytes: staging.len(),
+            part: store.part_bytes(),
+        });
+    }
+    let mut rest = bytes;
+    while !rest.is_empty() {
+        let take = (part - put.held).min(rest.len());
+        staging[put.held..put.held + take].copy_from_slice(&rest[..take]);
+        put.held += take;
+        rest = &rest[take..];
+        if put.held == part {
+            store.put_part(&staging[..part])?;
+            put.held = 0;
+        }
+    }
+    if last && put.held > 0 {
+        store.put_part(&staging[..put.held])?;
+        put.held = 0;
+    }
+    Ok(())
+}
+
+/// Read dataset `name` through `staging`: its length and the CRC-32 of what was read.
+fn read_back<S: Storage>(
+    store: &mut S,
+    name: &str,
+    staging: &mut [u8],
+) -> Result<(u32, u32), StoreError> {
+    let mut digest = crate::flash::CRC32.digest();
+    let mut at = 0;
+    loop {
+        let (head, n) = store.read_at(name, at, staging)?;
+        digest.update(&staging[..n]);
+        at += n;
+        if at >= head.len {
+            return Ok((len_u32(at), digest.finalize()));
+        }
+        if n == 0 {
+            return Err(StoreError::Damaged);
+        }
     }
 }
 

@@ -12,7 +12,7 @@
 use leeward_firmware::link::frame::MAX_WIRE;
 use leeward_firmware::link::LinkServer;
 use leeward_firmware::settings::Settings;
-use leeward_firmware::storage::{Catalog, DataKind, Storage, StoreError};
+use leeward_firmware::storage::{Catalog, DataHead, DataKind, Storage, StoreError};
 
 /// Bytes of replies waiting to go out: room for two whole replies.
 pub const OUTBOX: usize = 2 * MAX_WIRE;
@@ -201,12 +201,32 @@ impl<S: Storage> Storage for Watched<'_, S> {
     fn list(&mut self) -> Catalog {
         self.inner.list()
     }
-    fn get(&mut self, name: &str, buf: &mut [u8]) -> Result<(DataKind, usize), StoreError> {
-        self.inner.get(name, buf)
+    fn read_at(
+        &mut self,
+        name: &str,
+        offset: usize,
+        buf: &mut [u8],
+    ) -> Result<(DataHead, usize), StoreError> {
+        self.inner.read_at(name, offset, buf)
     }
-    fn put(&mut self, kind: DataKind, name: &str, bytes: &[u8]) -> Result<(), StoreError> {
-        let r = self.inner.put(kind, name, bytes);
+    fn max_dataset_bytes(&self) -> usize {
+        self.inner.max_dataset_bytes()
+    }
+    fn part_bytes(&self) -> usize {
+        self.inner.part_bytes()
+    }
+    fn put_begin(&mut self, kind: DataKind, name: &str, len: usize) -> Result<(), StoreError> {
+        self.inner.put_begin(kind, name, len)
+    }
+    fn put_part(&mut self, bytes: &[u8]) -> Result<(), StoreError> {
+        self.inner.put_part(bytes)
+    }
+    fn put_end(&mut self, crc: u32) -> Result<(), StoreError> {
+        let r = self.inner.put_end(crc);
         self.note(r)
+    }
+    fn put_cancel(&mut self) {
+        self.inner.put_cancel()
     }
     fn rename(&mut self, from: &str, to: &str) -> Result<(), StoreError> {
         let r = self.inner.rename(from, to);
