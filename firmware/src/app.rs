@@ -113,12 +113,6 @@ pub const DATA_ROWS: [(&str, &str); 4] = [
     ("Use", "in its task"),
 ];
 
-/// The most bytes of a stored sounding the device reads (the record of a
-/// [`crate::sounding::DEVICE_LEVELS`]-level sounding is under 7 KB; the rest leaves room
-/// for what a later firmware may add after it). The buffer is on the stack while the
-/// sounding is read.
-pub const MAX_SOUNDING_READ: usize = 10 * 1024;
-
 /// The name the demo station set is stored under on first power-on.
 pub const DEMO_SET_NAME: &str = "DEMO";
 
@@ -259,7 +253,10 @@ pub struct App {
     network_fit: Option<NetworkFit>,
     network_used: Network,
     residual_first: u8,
-    sounding: Option<SoundingView>,
+    /// The Sounding task's current summary, kept in place (it is kilobytes: made where
+    /// it is kept, never moved), valid when `sounding_set`.
+    sounding: SoundingView,
+    sounding_set: bool,
     /// The sounding shown is a stored one (its dataset name), not the demo ascent.
     sounding_from: Option<DataName>,
     /// A stored tabulated ridge the crossing uses instead of the form's bell, with the
@@ -354,7 +351,8 @@ impl App {
             network_fit: None,
             network_used: Network::new(),
             residual_first: 0,
-            sounding: None,
+            sounding: SoundingView::blank(),
+            sounding_set: false,
             sounding_from: None,
             ridge_table: None,
             settings,
@@ -443,26 +441,10 @@ impl App {
 
     /// One dataset operation against the store.
     fn run<S: Storage>(&mut self, op: StoreOp, storage: &mut S) {
-        let mut buf = [0u8; MAX_STATION_SET_BYTES];
+        // Each operation with a buffer has a function of its own (not inlined), so that
+        // this frame stays small under the Sounding task's deep summary.
         match op {
-            StoreOp::View(name) => {
-                let Some(info) = self.catalog.iter().find(|d| d.name == name).cloned() else {
-                    return self.store_notice("Cannot read", StoreError::NotFound);
-                };
-                let stations = if info.kind == DataKind::Stations {
-                    let got = storage.get(&name, &mut buf).and_then(|(_, n)| {
-                        crate::storage::decode_stations(buf.get(..n).unwrap_or(&[]))
-                    });
-                    match got {
-                        Ok(n) => Some(StationSummary::of(&n)),
-                        Err(e) => return self.store_notice("Cannot read", e),
-                    }
-                } else {
-                    None
-                };
-                self.data_summary = Some(DataSummary { info, stations });
-                self.screen = Screen::DataView;
-            }
+            StoreOp::View(name) => self.view_dataset(name, storage),
             StoreOp::Rename { from, to } => match storage.rename(&from, &to) {
                 Ok(()) => {
                     self.refresh(storage);
@@ -486,33 +468,11 @@ impl App {
                 }
                 Err(e) => self.store_notice("Cannot delete", e),
             },
-            StoreOp::SaveStations(name) => {
-                let Ok(network) = net::gather(&self.stations, &self.settings) else {
-                    // The entries were checked when OK was pressed; show, never hide.
-                    return self.store_notice("Cannot save", StoreError::Damaged);
-                };
-                let put = crate::storage::encode_stations(&network, &mut buf)
-                    .and_then(|n| storage.put(DataKind::Stations, &name, &buf[..n]));
-                self.refresh(storage);
-                match put {
-                    Ok(()) => {
-                        self.notice = Some(Notice {
-                            heading: "Saved",
-                            text: crate::text::message(format_args!(
-                                "{} stations saved as {name}.",
-                                network.len()
-                            )),
-                        });
-                        self.set_name = name;
-                        self.screen = Screen::NetworkList;
-                    }
-                    Err(e) => self.store_notice("Cannot save", e),
-                }
-            }
+            StoreOp::SaveStations(name) => self.save_stations(name, storage),
             StoreOp::Use(name) => {
                 let kind = self.catalog.iter().find(|d| d.name == name).map(|d| d.kind);
                 match kind {
-                    Some(DataKind::Stations) => self.run(StoreOp::LoadStations(name), storage),
+                    Some(DataKind::Stations) => self.load_stations(name, storage),
                     Some(DataKind::Sounding) => self.use_sounding(name, storage),
                     Some(DataKind::Ridge) => self.use_ridge(name, storage),
                     Some(k) => {
@@ -528,32 +488,86 @@ impl App {
                     None => self.store_notice("Cannot read", StoreError::NotFound),
                 }
             }
-            StoreOp::LoadStations(name) => {
-                let got = storage.get(&name, &mut buf).and_then(|(kind, n)| {
-                    if kind == DataKind::Stations {
-                        crate::storage::decode_stations(buf.get(..n).unwrap_or(&[]))
-                    } else {
-                        Err(StoreError::NotFound)
-                    }
-                });
-                match got {
-                    Ok(network) => {
-                        self.stations = net::entries(&network, &self.settings);
-                        self.station_list.sel = 0;
-                        self.set_name = name;
-                        self.screen = Screen::NetworkList;
-                    }
-                    Err(e) => self.store_notice("Cannot load", e),
-                }
+            StoreOp::LoadStations(name) => self.load_stations(name, storage),
+        }
+    }
+
+    /// Show what dataset `name` holds.
+    #[inline(never)]
+    fn view_dataset<S: Storage>(&mut self, name: DataName, storage: &mut S) {
+        let mut buf = [0u8; MAX_STATION_SET_BYTES];
+        let Some(info) = self.catalog.iter().find(|d| d.name == name).cloned() else {
+            return self.store_notice("Cannot read", StoreError::NotFound);
+        };
+        let stations = if info.kind == DataKind::Stations {
+            let got = storage
+                .get(&name, &mut buf)
+                .and_then(|(_, n)| crate::storage::decode_stations(buf.get(..n).unwrap_or(&[])));
+            match got {
+                Ok(n) => Some(StationSummary::of(&n)),
+                Err(e) => return self.store_notice("Cannot read", e),
             }
+        } else {
+            None
+        };
+        self.data_summary = Some(DataSummary { info, stations });
+        self.screen = Screen::DataView;
+    }
+
+    /// Save the station list as dataset `name`.
+    #[inline(never)]
+    fn save_stations<S: Storage>(&mut self, name: DataName, storage: &mut S) {
+        let mut buf = [0u8; MAX_STATION_SET_BYTES];
+        let Ok(network) = net::gather(&self.stations, &self.settings) else {
+            // The entries were checked when OK was pressed; show, never hide.
+            return self.store_notice("Cannot save", StoreError::Damaged);
+        };
+        let put = crate::storage::encode_stations(&network, &mut buf)
+            .and_then(|n| storage.put(DataKind::Stations, &name, &buf[..n]));
+        self.refresh(storage);
+        match put {
+            Ok(()) => {
+                self.notice = Some(Notice {
+                    heading: "Saved",
+                    text: crate::text::message(format_args!(
+                        "{} stations saved as {name}.",
+                        network.len()
+                    )),
+                });
+                self.set_name = name;
+                self.screen = Screen::NetworkList;
+            }
+            Err(e) => self.store_notice("Cannot save", e),
+        }
+    }
+
+    /// Load station set `name` into the Network task.
+    #[inline(never)]
+    fn load_stations<S: Storage>(&mut self, name: DataName, storage: &mut S) {
+        let mut buf = [0u8; MAX_STATION_SET_BYTES];
+        let got = storage.get(&name, &mut buf).and_then(|(kind, n)| {
+            if kind == DataKind::Stations {
+                crate::storage::decode_stations(buf.get(..n).unwrap_or(&[]))
+            } else {
+                Err(StoreError::NotFound)
+            }
+        });
+        match got {
+            Ok(network) => {
+                self.stations = net::entries(&network, &self.settings);
+                self.station_list.sel = 0;
+                self.set_name = name;
+                self.screen = Screen::NetworkList;
+            }
+            Err(e) => self.store_notice("Cannot load", e),
         }
     }
 
     /// Make stored sounding `name` the Sounding task's current one and show its summary.
     fn use_sounding<S: Storage>(&mut self, name: DataName, storage: &mut S) {
-        match crate::sounding::stored_view(storage, &name) {
-            Ok(v) => {
-                self.sounding = Some(v);
+        match crate::sounding::stored_view_into(storage, &name, &mut self.sounding) {
+            Ok(()) => {
+                self.sounding_set = true;
                 self.sounding_from = Some(name);
                 // The crossing form takes its lid and N from this sounding next time.
                 self.crossing_seeded = false;
@@ -702,7 +716,7 @@ impl App {
     }
     /// The last sounding summary shown.
     pub fn sounding(&self) -> Option<&SoundingView> {
-        self.sounding.as_ref()
+        self.sounding_set.then_some(&self.sounding)
     }
     /// The last Ridge crossing result.
     pub fn crossing_result(&self) -> Option<&CrossingView> {
@@ -760,7 +774,7 @@ impl App {
                             // A stored sounding chosen in the Data task stays the current
                             // one; otherwise the demo ascent is summarised on entry (a
                             // failure is a notice over the home menu).
-                            if self.sounding_from.is_some() && self.sounding.is_some() {
+                            if self.sounding_from.is_some() && self.sounding_set {
                                 Screen::SoundingResult(0)
                             } else {
                                 self.open_demo_sounding()
@@ -890,9 +904,9 @@ impl App {
     /// Summarise the demo ascent for the Sounding task: its first page, or a notice over
     /// the home menu.
     fn open_demo_sounding(&mut self) -> Screen {
-        match crate::sounding::demo_view() {
-            Ok(v) => {
-                self.sounding = Some(v);
+        match crate::sounding::demo_view_into(&mut self.sounding) {
+            Ok(()) => {
+                self.sounding_set = true;
                 self.sounding_from = None;
                 Screen::SoundingResult(0)
             }
@@ -913,20 +927,25 @@ impl App {
         let s = self.settings;
         if !self.crossing_seeded {
             self.crossing_seeded = true;
+            // The current sounding: a stored one in use, else the demo ascent (made
+            // here, where the Sounding task keeps it, if it has not been yet).
+            if !self.sounding_set {
+                self.sounding_from = None;
+                self.sounding_set = crate::sounding::demo_view_into(&mut self.sounding).is_ok();
+            }
             // A summary that cannot give a figure leaves the demo value in its field.
-            let current = match (&self.sounding_from, &self.sounding) {
-                (Some(_), Some(v)) => Ok(v.clone()),
-                _ => crate::sounding::demo_view(),
+            let (lid, n) = match self.sounding() {
+                Some(v) => (
+                    v.lid.as_ref().ok().map(|l| l.height_m),
+                    v.ridge_flow.as_ref().ok().map(|rf| rf.n_per_s),
+                ),
+                None => (None, None),
             };
-            if let Ok(v) = current {
-                if let Ok(l) = v.lid {
-                    self.crossing.fields[2] =
-                        Field::with_value(&CROSSING_FIELDS[2], l.height_m, &s);
-                }
-                if let Ok(rf) = v.ridge_flow {
-                    self.crossing.fields[3] =
-                        Field::with_value(&CROSSING_FIELDS[3], rf.n_per_s, &s);
-                }
+            if let Some(z) = lid {
+                self.crossing.fields[2] = Field::with_value(&CROSSING_FIELDS[2], z, &s);
+            }
+            if let Some(n) = n {
+                self.crossing.fields[3] = Field::with_value(&CROSSING_FIELDS[3], n, &s);
             }
         }
         if let Some(fit) = &self.network_fit {
@@ -1533,7 +1552,7 @@ impl App {
                 let i = (n as usize).min(titles.len() - 1);
                 let tag = line(format_args!("{}/{}", i + 1, SOUNDING_PAGES));
                 p.title(titles[i], &tag)?;
-                if let Some(v) = &self.sounding {
+                if let Some(v) = self.sounding() {
                     match i {
                         0 => pages::sounding_column(v, s).draw(&mut p)?,
                         1 => pages::sounding_froude(v, s).draw(&mut p)?,

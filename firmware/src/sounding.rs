@@ -86,6 +86,16 @@ pub struct PlotProfile {
 impl PlotProfile {
     /// The plottable levels of `profile` with the summary's best heights.
     pub fn of<const N: usize>(profile: &Profile<N>, s: &Summary<N>) -> Self {
+        let mut out = PlotProfile::default();
+        out.fill(profile, s);
+        out
+    }
+
+    /// [`PlotProfile::of`] written over `self`.
+    pub fn fill<const N: usize>(&mut self, profile: &Profile<N>, s: &Summary<N>) {
+        self.levels.clear();
+        self.stable_m.clear();
+        let out = self;
         let mut all = 0usize;
         let usable = |i: usize| -> Option<PlotLevel> {
             let lv = profile.levels().get(i)?;
@@ -104,7 +114,6 @@ impl PlotProfile {
         }
         // The k-th kept level is usable level k (all − 1)/(PLOT_LEVELS − 1), rounded
         // down: every level when they fit, else evenly spread with both ends kept.
-        let mut out = PlotProfile::default();
         let keep = all.min(PLOT_LEVELS);
         let mut k = 0usize;
         let mut n = 0usize;
@@ -124,29 +133,53 @@ impl PlotProfile {
         for r in s.stability.stable_layers.iter().take(PLOT_LAYERS) {
             let _ = out.stable_m.push((r.base_m as f32, r.top_m as f32));
         }
-        out
     }
 }
 
 impl SoundingView {
     /// The parts of a core summary the pages show.
     pub fn of<const N: usize>(profile: &Profile<N>, s: &Summary<N>) -> Self {
-        let mut id = heapless::String::new();
-        let _ = id.push_str(&profile.station.id);
+        let mut v = SoundingView::blank();
+        v.fill(profile, s);
+        v
+    }
+
+    /// A view of nothing, to be filled ([`SoundingView::fill`]).
+    pub fn blank() -> Self {
+        const NONE: Error = Error::NoData { what: "a summary" };
         SoundingView {
-            station: id,
-            tropopauses: s.tropopauses,
-            lid: s.lid,
-            bulk_n_per_s: s.bulk_n_per_s,
-            ridge_flow: s.ridge_flow.unwrap_or(Err(Error::NoData {
-                what: "a ridge for the Froude check",
-            })),
-            barotropy: s.barotropy.clone(),
-            heights_flagged: s.heights.flagged,
-            heights_worst_m: s.heights.worst.map(|(_, d)| d),
-            height_tolerance_m: s.heights.tolerance_m,
-            plot: PlotProfile::of(profile, s),
+            station: heapless::String::new(),
+            tropopauses: Tropopauses {
+                first: None,
+                second: None,
+            },
+            lid: Err(NONE),
+            bulk_n_per_s: Err(NONE),
+            ridge_flow: Err(NONE),
+            barotropy: Err(NONE),
+            heights_flagged: 0,
+            heights_worst_m: None,
+            height_tolerance_m: 0.0,
+            plot: PlotProfile::default(),
         }
+    }
+
+    /// [`SoundingView::of`] written over `self`, part by part (on the handheld the view
+    /// is kilobytes, and is made where it is kept).
+    pub fn fill<const N: usize>(&mut self, profile: &Profile<N>, s: &Summary<N>) {
+        self.station.clear();
+        let _ = self.station.push_str(&profile.station.id);
+        self.tropopauses = s.tropopauses;
+        self.lid = s.lid;
+        self.bulk_n_per_s = s.bulk_n_per_s;
+        self.ridge_flow = s.ridge_flow.unwrap_or(Err(Error::NoData {
+            what: "a ridge for the Froude check",
+        }));
+        self.barotropy = s.barotropy.clone();
+        self.heights_flagged = s.heights.flagged;
+        self.heights_worst_m = s.heights.worst.map(|(_, d)| d);
+        self.height_tolerance_m = s.heights.tolerance_m;
+        self.plot.fill(profile, s);
     }
 }
 
@@ -170,16 +203,29 @@ pub fn demo_options() -> SummaryOptions {
 
 /// Summarise the demo sounding.
 pub fn demo_view() -> Result<SoundingView> {
-    let mut profile = DeviceProfile::empty(StationInfo::default());
-    demo::sounding_into(&mut profile)?;
-    view_in_place(&profile)
+    let mut v = SoundingView::blank();
+    demo_view_into(&mut v)?;
+    Ok(v)
 }
 
-/// The view of `profile`, its summary made in place against the demo ridge.
-fn view_in_place(profile: &DeviceProfile) -> Result<SoundingView> {
+/// Summarise the demo sounding into `out` (left as it was on an error). The device's
+/// path: the view is made where it is kept, not moved through a `Result`.
+#[inline(never)]
+pub fn demo_view_into(out: &mut SoundingView) -> Result<()> {
+    let mut profile = DeviceProfile::empty(StationInfo::default());
+    demo::sounding_into(&mut profile)?;
+    view_in_place(&profile, out)
+}
+
+/// The view of `profile` into `out`, its summary made in place against the demo ridge;
+/// on an error `out` is left as it was. Not inlined, so that the summary's stack is
+/// not added to the caller's frame, which holds the profile.
+#[inline(never)]
+fn view_in_place(profile: &DeviceProfile, out: &mut SoundingView) -> Result<()> {
     let mut summary = Summary::empty();
     summarise_into(profile, &demo_options(), &mut summary)?;
-    Ok(SoundingView::of(profile, &summary))
+    out.fill(profile, &summary);
+    Ok(())
 }
 
 /// Why a stored sounding could not be read into the device's profile.
@@ -227,8 +273,8 @@ impl From<StoreError> for LoadError {
 /// pressure 8, three optional values 9 each, an optional wind 17, the kind 1).
 pub const MAX_LEVEL_BYTES: usize = 53;
 /// Most bytes of the record's head: tag and version 2, the station (identifier 9,
-/// three optional values 9 each, an optional time of at most 13) and the level count 5.
-const MAX_HEAD_BYTES: usize = 2 + 9 + 3 * 9 + 13 + 5;
+/// three optional values 9 each, an optional time 4) and the level count 5.
+const MAX_HEAD_BYTES: usize = 2 + 9 + 3 * 9 + 4 + 5;
 /// The window a stored sounding is read through: a few levels at a time.
 pub const READ_WINDOW: usize = 512;
 
@@ -324,6 +370,7 @@ pub fn load_profile<const N: usize>(
 /// so that the record is never whole in RAM: level by level, each checked as when typed
 /// in, then the rest of the dataset (a pushed report's text) read past and the CRC-32 of
 /// the whole checked. On an error `out` holds no levels.
+#[inline(never)]
 pub fn load_stored<S: Storage, const N: usize>(
     store: &mut S,
     name: &str,
@@ -349,14 +396,17 @@ pub fn load_stored<S: Storage, const N: usize>(
     Ok(())
 }
 
-/// Summarise stored sounding `name` against the demo ridge.
-pub fn stored_view<S: Storage>(
+/// Summarise stored sounding `name` against the demo ridge into `out` (left as it was
+/// on an error).
+#[inline(never)]
+pub fn stored_view_into<S: Storage>(
     store: &mut S,
     name: &str,
-) -> core::result::Result<SoundingView, StoredError> {
+    out: &mut SoundingView,
+) -> core::result::Result<(), StoredError> {
     let mut profile = DeviceProfile::empty(StationInfo::default());
     load_stored(store, name, &mut profile).map_err(StoredError::Load)?;
-    view_in_place(&profile).map_err(StoredError::Core)
+    view_in_place(&profile, out).map_err(StoredError::Core)
 }
 
 /// Why a stored sounding gave no summary.
@@ -613,10 +663,100 @@ mod tests {
         // The summary of the stored record is the demo's.
         let mut store = crate::storage::MemStorage::new();
         store.put(DataKind::Sounding, "DEMO", &buf[..n]).unwrap();
+        let mut v = SoundingView::blank();
+        stored_view_into(&mut store, "DEMO", &mut v).unwrap();
+        assert_eq!(v, demo_view().unwrap());
+    }
+
+    #[test]
+    fn a_stored_sounding_is_read_through_the_window_and_its_crc_checked() {
+        use crate::flash::{sim::SimFlash, FlashStore};
+        use crate::records::Record;
+        use crate::storage::MemStorage;
+        let p = demo::sounding().unwrap();
+        let mut buf = [0u8; 8192];
+        // With a TEMP text after the record, so that the dataset spans several flash
+        // chunks and windows.
+        let mut text = heapless::String::<4096>::new();
+        for _ in 0..60 {
+            text.push_str("TTAA 64121 08888 99799 09060 26233 = ")
+                .unwrap();
+        }
+        let src = crate::records::SourceText {
+            format: crate::records::SourceFormat::Temp,
+            text: &text,
+        };
+        let n = crate::records::encode_sounding(&p, Some(&src), &mut buf).unwrap();
+        assert!(n > 2 * crate::flash::CHUNK_BYTES, "{n}");
+        const PAGE: usize = 16 * 1024;
+        let flash: SimFlash<[u8; 4 * PAGE], 4, PAGE> = SimFlash::new([0xFF; 4 * PAGE], 1);
+        let page = PAGE as u32;
+        let mut fs = FlashStore::open(flash, 0..3 * page, 3 * page..4 * page).unwrap();
+        fs.put(DataKind::Sounding, "LONG", &buf[..n]).unwrap();
+        let mut out = DeviceProfile::empty(StationInfo::default());
+        load_stored(&mut fs, "LONG", &mut out).unwrap();
+        assert_eq!(out.station, p.station);
+        assert_eq!(out.levels(), p.levels());
+        // One byte of the text damaged in flash after boot: the levels still decode, but
+        // the dataset does not read whole, and nothing is kept.
+        let at = fs
+            .flash()
+            .bytes()
+            .windows(10)
+            .rposition(|w| w == b"TTAA 64121")
+            .unwrap();
+        fs._flash_mut().bytes_mut()[at + 3] ^= 0x04;
         assert_eq!(
-            stored_view(&mut store, "DEMO").unwrap(),
-            demo_view().unwrap()
+            load_stored(&mut fs, "LONG", &mut out),
+            Err(LoadError::Store(StoreError::Damaged))
         );
+        assert!(out.is_empty());
+        let short = p.encode(&mut buf).unwrap();
+        let mut mem = MemStorage::new();
+        // Not a sounding; no such dataset.
+        mem.put(DataKind::Ridge, "R", &buf[..short]).unwrap();
+        assert_eq!(
+            load_stored(&mut mem, "R", &mut out),
+            Err(LoadError::Store(StoreError::NotFound))
+        );
+        assert_eq!(
+            load_stored(&mut mem, "NONE", &mut out),
+            Err(LoadError::Store(StoreError::NotFound))
+        );
+    }
+
+    #[test]
+    fn the_largest_values_fit_the_bounds_the_reader_refills_by() {
+        use leeward_core::sounding::{LevelKind, ObsTime, Wind};
+        let level = Level {
+            pressure_pa: -1.0e300,
+            height_m: Some(1.0e300),
+            temperature_k: Some(1.0e300),
+            dewpoint_k: Some(1.0e300),
+            wind: Some(Wind {
+                dir_from_deg: 359.0,
+                speed_ms: 1.0e300,
+            }),
+            kind: LevelKind(u8::MAX),
+        };
+        let mut buf = [0u8; 128];
+        assert_eq!(
+            postcard::to_slice(&level, &mut buf).unwrap().len(),
+            MAX_LEVEL_BYTES
+        );
+        let station = StationInfo {
+            id: "ABCDEFGH".try_into().unwrap(),
+            lat_deg: Some(-90.0),
+            lon_deg: Some(180.0),
+            elevation_m: Some(8848.0),
+            time: Some(ObsTime {
+                day: 31,
+                hour: 23,
+                minute: 59,
+            }),
+        };
+        let head = 2 + postcard::to_slice(&station, &mut buf).unwrap().len() + 5;
+        assert!(head <= MAX_HEAD_BYTES, "{head}");
     }
 
     #[test]

@@ -28,7 +28,7 @@ fn wire(seq: u16, r: &Request<'_>) -> Vec<u8> {
 }
 
 /// Send raw bytes; every reply frame that came back, decoded to owned form for the test.
-fn exchange(dev: &mut LinkServer<'_>, st: &mut MemStorage, bytes: &[u8]) -> Vec<(u16, String)> {
+fn exchange<S: Storage>(dev: &mut LinkServer<'_>, st: &mut S, bytes: &[u8]) -> Vec<(u16, String)> {
     let mut out: Vec<Vec<u8>> = vec![];
     dev.feed(bytes, st, &mut |w: &[u8]| out.push(w.to_vec()));
     out.into_iter()
@@ -41,7 +41,7 @@ fn exchange(dev: &mut LinkServer<'_>, st: &mut MemStorage, bytes: &[u8]) -> Vec<
 }
 
 /// One request, its one reply (as Debug text, with the sequence number checked).
-fn ask(dev: &mut LinkServer<'_>, st: &mut MemStorage, seq: u16, r: &Request<'_>) -> String {
+fn ask<S: Storage>(dev: &mut LinkServer<'_>, st: &mut S, seq: u16, r: &Request<'_>) -> String {
     let replies = exchange(dev, st, &wire(seq, r));
     assert_eq!(replies.len(), 1, "{r:?}: {replies:?}");
     assert_eq!(replies[0].0, seq);
@@ -58,7 +58,7 @@ fn dataset(len: usize, seed: u64) -> Vec<u8> {
 }
 
 /// Send `data` as dataset `name` in MAX_CHUNK pieces; the final reply.
-fn push(dev: &mut LinkServer<'_>, st: &mut MemStorage, name: &str, data: &[u8]) -> String {
+fn push<S: Storage>(dev: &mut LinkServer<'_>, st: &mut S, name: &str, data: &[u8]) -> String {
     let begin = Request::PutBegin {
         name,
         kind: DataKind::Sounding.to_byte(),
@@ -617,4 +617,151 @@ fn frames_built_from_the_documentation_alone_are_understood() {
     let mut back = [0u8; 40];
     assert_eq!(st.get("T_1200", &mut back), Ok((DataKind::Sounding, 40)));
     assert_eq!(&back[..], &data[..]);
+}
+
+#[test]
+fn a_long_dataset_streams_to_flash_through_one_store_part_of_staging() {
+    use leeward_firmware::flash::{sim::SimFlash, FlashStore};
+    use leeward_firmware::link::STAGING_BYTES;
+    // The board's map geometry: three 16 KiB pages (and one for the log).
+    const PAGE: u32 = 16 * 1024;
+    let open = |f| FlashStore::open(f, 0..3 * PAGE, 3 * PAGE..4 * PAGE).unwrap();
+    let mut st = open(SimFlash::<Vec<u8>, 4, { 16 * 1024 }>::new(
+        vec![0xFF; 4 * PAGE as usize],
+        3,
+    ));
+    let mut staging = [0u8; STAGING_BYTES];
+    let mut dev = LinkServer::new(&mut staging);
+    let hello = ask(
+        &mut dev,
+        &mut st,
+        1,
+        &Request::Hello {
+            version: PROTOCOL_VERSION,
+        },
+    );
+    assert!(hello.contains("max_dataset: 16384"), "{hello}");
+    // Ten times the staging buffer, in the link's pieces.
+    let data = dataset(10 * STAGING_BYTES + 77, 11);
+    assert_eq!(
+        push(&mut dev, &mut st, "LONG", &data),
+        format!("Stored {{ bytes: {}, crc: {} }}", data.len(), crc32(&data))
+    );
+    // Read back over the link, piece by piece.
+    let mut back = Vec::new();
+    while back.len() < data.len() {
+        let r = ask(
+            &mut dev,
+            &mut st,
+            40,
+            &Request::Get {
+                name: "LONG",
+                offset: back.len() as u32,
+            },
+        );
+        let want = format!("crc: {}", crc32(&data));
+        assert!(r.contains(&want), "{r}");
+        let start = r.find("bytes: [").unwrap() + 8;
+        let end = r[start..].find(']').unwrap() + start;
+        let piece: Vec<u8> = r[start..end]
+            .split(", ")
+            .map(|b| b.parse().unwrap())
+            .collect();
+        assert!(!piece.is_empty() && piece.len() <= MAX_CHUNK);
+        back.extend(piece);
+    }
+    assert_eq!(back, data);
+    // A session that ends half way through a put leaves nothing, and the store's room
+    // is as before; the same put then goes through.
+    let free = st.free_bytes();
+    let begin = Request::PutBegin {
+        name: "HALF",
+        kind: DataKind::Sounding.to_byte(),
+        total: data.len() as u32,
+        crc: crc32(&data),
+    };
+    assert_eq!(ask(&mut dev, &mut st, 50, &begin), "Ready { next: 0 }");
+    for (i, piece) in data.chunks(MAX_CHUNK).take(9).enumerate() {
+        ask(
+            &mut dev,
+            &mut st,
+            51,
+            &Request::PutData {
+                offset: (i * MAX_CHUNK) as u32,
+                bytes: piece,
+            },
+        );
+    }
+    dev.reset(&mut st);
+    assert_eq!(st.list().len(), 1);
+    assert_eq!(st.free_bytes(), free);
+    ask(
+        &mut dev,
+        &mut st,
+        60,
+        &Request::Hello {
+            version: PROTOCOL_VERSION,
+        },
+    );
+    assert!(push(&mut dev, &mut st, "HALF", &data[..5000]).starts_with("Stored"));
+    // What was stored survives a reboot.
+    let mut again = open(st.into_flash());
+    let mut buf = vec![0u8; data.len()];
+    assert_eq!(
+        again.get("LONG", &mut buf),
+        Ok((DataKind::Sounding, data.len()))
+    );
+    assert_eq!(buf, data);
+    assert_eq!(again.get("HALF", &mut buf), Ok((DataKind::Sounding, 5000)));
+    assert_eq!(&buf[..5000], &data[..5000]);
+}
+
+#[test]
+fn a_change_made_on_the_device_during_a_put_ends_it_cleanly() {
+    let mut st = MemStorage::new();
+    let mut staging = [0u8; 256];
+    let mut dev = LinkServer::new(&mut staging);
+    ask(
+        &mut dev,
+        &mut st,
+        1,
+        &Request::Hello {
+            version: PROTOCOL_VERSION,
+        },
+    );
+    let data = dataset(600, 4);
+    let begin = Request::PutBegin {
+        name: "K",
+        kind: DataKind::Sounding.to_byte(),
+        total: data.len() as u32,
+        crc: crc32(&data),
+    };
+    assert_eq!(ask(&mut dev, &mut st, 2, &begin), "Ready { next: 0 }");
+    ask(
+        &mut dev,
+        &mut st,
+        3,
+        &Request::PutData {
+            offset: 0,
+            bytes: &data[..256],
+        },
+    );
+    // The user saves a station set on the keypad meanwhile.
+    st.put(DataKind::Stations, "SET", &[1, 2, 3]).unwrap();
+    assert_eq!(
+        ask(
+            &mut dev,
+            &mut st,
+            4,
+            &Request::PutData {
+                offset: 256,
+                bytes: &data[256..512],
+            },
+        ),
+        err(LinkError::NoPut)
+    );
+    assert_eq!(st.list().len(), 1);
+    // The host starts again, and the whole dataset arrives.
+    assert!(push(&mut dev, &mut st, "K", &data).starts_with("Stored"));
+    assert_eq!(st.list().len(), 2);
 }

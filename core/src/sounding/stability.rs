@@ -4,7 +4,7 @@
 use heapless::Vec;
 
 use super::heights::Heights;
-use super::profile::Profile;
+use super::profile::{Level, Profile};
 use super::thermo::potential_temperature;
 use crate::constants::G0;
 use crate::error::{Error, Result};
@@ -135,11 +135,22 @@ pub fn stability<const N: usize>(
     heights: &Heights<N>,
     below_m: Option<f64>,
 ) -> Stability {
-    let mut out = Stability {
-        inversions: Vec::new(),
-        stable_layers: Vec::new(),
-        not_listed: 0,
-    };
+    let mut out = Stability::default();
+    stability_into(profile, heights, below_m, &mut out);
+    out
+}
+
+/// [`stability`] written into `out` (overwritten whole), for a caller that keeps it in
+/// place: the lists are kilobytes, and a returned value is another copy on the stack.
+pub fn stability_into<const N: usize>(
+    profile: &Profile<N>,
+    heights: &Heights<N>,
+    below_m: Option<f64>,
+    out: &mut Stability,
+) {
+    out.inversions.clear();
+    out.stable_layers.clear();
+    out.not_listed = 0;
     let levels = profile.levels();
     let mut inv: Option<(LayerStability, LayerStability)> = None;
     let mut stab: Option<(LayerStability, LayerStability)> = None;
@@ -189,7 +200,6 @@ pub fn stability<const N: usize>(
     }
     close(inv, &mut out.inversions, &mut out.not_listed);
     close(stab, &mut out.stable_layers, &mut out.not_listed);
-    out
 }
 
 /// Bulk buoyancy frequency N, s⁻¹, between heights `z1_m` < `z2_m`:
@@ -269,9 +279,47 @@ pub struct Tropopauses {
 /// Whether the WMO (1957) tropopause condition holds at temperature level `k` of `pts`:
 /// the lapse rate to the next level is ≤ 2 K/km and the mean lapse rate from `k` to
 /// every level within 2 km above (and to the point 2 km above, interpolated) is ≤ 2 K/km.
-fn tropopause_at(pts: &[(usize, f64, f64)], k: usize) -> bool {
-    let (_, z0, t0) = pts[k];
-    let Some(&(_, z1, t1)) = pts.get(k + 1) else {
+/// The levels with a best height and a temperature, as indices into the profile, their
+/// height and temperature looked up when needed: a list of indices keeps the stack small
+/// (24 bytes a level as values, 2 as indices; the handheld summarises on its stack).
+struct Points<'a, const N: usize> {
+    idx: Vec<u16, N>,
+    levels: &'a [Level],
+    heights: &'a Heights<N>,
+}
+
+impl<'a, const N: usize> Points<'a, N> {
+    fn of(profile: &'a Profile<N>, heights: &'a Heights<N>) -> Self {
+        let mut idx = Vec::new();
+        for (i, _, _) in temperature_heights(profile, heights) {
+            // Capacities match and N levels fit 16 bits, so neither can fail; a failure
+            // would only shorten the search.
+            if let Ok(i) = u16::try_from(i) {
+                let _ = idx.push(i);
+            }
+        }
+        Points {
+            idx,
+            levels: profile.levels(),
+            heights,
+        }
+    }
+    fn len(&self) -> usize {
+        self.idx.len()
+    }
+    /// Point `k`: (level index, z m, T K).
+    fn get(&self, k: usize) -> Option<(usize, f64, f64)> {
+        let i = usize::from(*self.idx.get(k)?);
+        Some((
+            i,
+            self.heights.best_m(i)?,
+            self.levels.get(i)?.temperature_k?,
+        ))
+    }
+}
+
+fn tropopause_at<const N: usize>(pts: &Points<'_, N>, k: usize) -> bool {
+    let (Some((_, z0, t0)), Some((_, z1, t1))) = (pts.get(k), pts.get(k + 1)) else {
         return false;
     };
     let lapse = |z: f64, t: f64| (t0 - t) / (z - z0) * 1000.0;
@@ -279,18 +327,20 @@ fn tropopause_at(pts: &[(usize, f64, f64)], k: usize) -> bool {
         return false;
     }
     let top = z0 + TROPOPAUSE_DEPTH_M;
-    let mut prev = pts[k];
-    for &p in &pts[k + 1..] {
-        let (_, z, t) = p;
+    let mut prev = (z0, t0);
+    for j in k + 1..pts.len() {
+        let Some((_, z, t)) = pts.get(j) else {
+            return false;
+        };
         if z >= top {
             // The point exactly 2 km above, interpolated.
-            let tt = prev.2 + (t - prev.2) * (top - prev.1) / (z - prev.1);
+            let tt = prev.1 + (t - prev.1) * (top - prev.0) / (z - prev.0);
             return lapse(top, tt) <= TROPOPAUSE_LAPSE_K_PER_KM;
         }
         if lapse(z, t) > TROPOPAUSE_LAPSE_K_PER_KM {
             return false;
         }
-        prev = p;
+        prev = (z, t);
     }
     // The sounding ends within 2 km: the condition cannot be confirmed.
     false
@@ -302,24 +352,23 @@ fn tropopause_at(pts: &[(usize, f64, f64)], k: usize) -> bool {
 /// tropopause is sought only above a layer, over the first, whose mean lapse rate over
 /// 1 km exceeds 3 K/km.
 pub fn tropopauses<const N: usize>(profile: &Profile<N>, heights: &Heights<N>) -> Tropopauses {
-    let mut pts: Vec<(usize, f64, f64), N> = Vec::new();
-    for p in temperature_heights(profile, heights) {
-        // Capacities match, so this cannot overflow; an overflow would only shorten the
-        // search.
-        let _ = pts.push(p);
-    }
+    let pts = Points::of(profile, heights);
     let levels = profile.levels();
     let found = |k: usize| {
-        let (i, z, t) = pts[k];
-        Tropopause {
+        let (i, z, t) = pts.get(k)?;
+        Some(Tropopause {
             index: i as u16,
             height_m: z,
-            pressure_pa: levels[i].pressure_pa,
+            pressure_pa: levels.get(i)?.pressure_pa,
             temperature_k: t,
-        }
+        })
     };
     let first_k = (0..pts.len())
-        .filter(|&k| levels[pts[k].0].pressure_pa <= TROPOPAUSE_MAX_PRESSURE_PA)
+        .filter(|&k| {
+            pts.get(k)
+                .and_then(|(i, _, _)| levels.get(i))
+                .is_some_and(|l| l.pressure_pa <= TROPOPAUSE_MAX_PRESSURE_PA)
+        })
         .find(|&k| tropopause_at(&pts, k));
     let Some(first_k) = first_k else {
         return Tropopauses {
@@ -331,27 +380,32 @@ pub fn tropopauses<const N: usize>(profile: &Profile<N>, heights: &Heights<N>) -
     // 1 km above, and to the point 1 km above, exceeds 3 K/km. The second tropopause may
     // lie within or above that layer (WMO 1957).
     let steep_from = |k: usize| {
-        let (_, z0, t0) = pts[k];
+        let Some((_, z0, t0)) = pts.get(k) else {
+            return false;
+        };
         let lapse = |z: f64, t: f64| (t0 - t) / (z - z0) * 1000.0;
-        let mut prev = pts[k];
-        for &p in &pts[k + 1..] {
-            if p.1 >= z0 + 1000.0 {
-                let tt = prev.2 + (p.2 - prev.2) * (z0 + 1000.0 - prev.1) / (p.1 - prev.1);
+        let mut prev = (z0, t0);
+        for j in k + 1..pts.len() {
+            let Some((_, z, t)) = pts.get(j) else {
+                return false;
+            };
+            if z >= z0 + 1000.0 {
+                let tt = prev.1 + (t - prev.1) * (z0 + 1000.0 - prev.0) / (z - prev.0);
                 return lapse(z0 + 1000.0, tt) > SECOND_TROPOPAUSE_LAPSE_K_PER_KM;
             }
-            if lapse(p.1, p.2) <= SECOND_TROPOPAUSE_LAPSE_K_PER_KM {
+            if lapse(z, t) <= SECOND_TROPOPAUSE_LAPSE_K_PER_KM {
                 return false;
             }
-            prev = p;
+            prev = (z, t);
         }
         false
     };
     let second = (first_k + 1..pts.len())
         .find(|&k| steep_from(k))
         .and_then(|k| (k + 1..pts.len()).find(|&j| tropopause_at(&pts, j)))
-        .map(found);
+        .and_then(found);
     Tropopauses {
-        first: Some(found(first_k)),
+        first: found(first_k),
         second,
     }
 }

@@ -5,7 +5,7 @@ use super::heights::{heights, heights_into, Heights, DEFAULT_HEIGHT_TOLERANCE_M}
 use super::lid::{lid, Lid, LidChoice};
 use super::profile::{Profile, MAX_LEVELS};
 use super::ridge_flow::{ridge_flow, RidgeCheck, RidgeFlow};
-use super::stability::{bulk_n, stability, tropopauses, Stability, Tropopauses};
+use super::stability::{bulk_n, stability_into, tropopauses, Stability, Tropopauses};
 use crate::error::{Error, Result};
 
 /// What the summary needs besides the profile.
@@ -134,7 +134,12 @@ impl<const N: usize> Summary<N> {
 fn fill<const N: usize>(profile: &Profile<N>, opts: &SummaryOptions, s: &mut Summary<N>) {
     let h = &s.heights;
     s.tropopauses = tropopauses(profile, h);
-    s.stability = stability(profile, h, s.tropopauses.first.map(|t| t.height_m));
+    stability_into(
+        profile,
+        h,
+        s.tropopauses.first.map(|t| t.height_m),
+        &mut s.stability,
+    );
     s.lid = lid(opts.lid, &s.tropopauses, &s.stability);
     let ground = h.best_all().find_map(|z| z);
     s.bulk_n_per_s = match (ground, &s.lid) {

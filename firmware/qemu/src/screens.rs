@@ -9,7 +9,10 @@ use embedded_graphics::prelude::{DrawTarget, OriginDimensions, Pixel, Size};
 
 use leeward_firmware::app::Screen;
 use leeward_firmware::framebuffer::FrameBuffer;
-use leeward_firmware::storage::MemStorage;
+use leeward_firmware::flash::{sim::SimFlash, FlashStore};
+use leeward_firmware::records::Record;
+use leeward_firmware::sounding::demo_view;
+use leeward_firmware::storage::{DataKind, MemStorage, Storage};
 use leeward_firmware::{App, Effect, Key};
 
 use crate::calc::CALC_BUDGET;
@@ -47,10 +50,10 @@ fn pixels_on(fb: &FrameBuffer) -> u32 {
 
 /// One key press and what the board does for it (firmware/board/src/main.rs): `handle`,
 /// `apply`, and a render when the effect asks for one. The key must change the screen.
-fn key(
+fn key<S: Storage>(
     r: &mut Report,
     app: &mut App,
-    st: &mut MemStorage,
+    st: &mut S,
     fb: &mut FrameBuffer,
     k: Key,
     name: &'static str,
@@ -74,7 +77,7 @@ fn key(
 
 /// Key presses without measuring (to reach a screen), each redrawn as the board does, so
 /// the frame holds the screen shown before the next measured key.
-fn press(app: &mut App, st: &mut MemStorage, fb: &mut FrameBuffer, keys: &[Key]) {
+fn press<S: Storage>(app: &mut App, st: &mut S, fb: &mut FrameBuffer, keys: &[Key]) {
     for &k in keys {
         let e = app.handle(k);
         let _ = app.apply(e, st);
@@ -228,5 +231,76 @@ pub fn run(r: &mut Report) {
         Key::Digit(4),
         "key press + redraw: a digit in the Site form",
         KEY_BUDGET,
+    );
+    stored_sounding(r, fb);
+}
+
+/// Bytes of the emulated flash for the stored-sounding step: a map of three 16 KiB pages
+/// (the board's map sectors) and a log of one.
+const FLASH_BYTES: usize = 4 * PAGE;
+const PAGE: usize = 16 * 1024;
+
+/// Data > Use on a stored sounding, as on the board: the sounding read from a flash store
+/// (emulated in RAM, the board's page size and word) through the Sounding task's window,
+/// summarised, and its first page drawn.
+fn stored_sounding(r: &mut Report, fb: &mut FrameBuffer) {
+    let name = "data use: a stored sounding (read + summary + redraw)";
+    let (Some(bytes), Some(profile), Some(record)) = (
+        cortex_m::singleton!(: [u8; FLASH_BYTES] = [0xFF; FLASH_BYTES]),
+        cortex_m::singleton!(: leeward_core::sounding::Profile =
+            leeward_core::sounding::Profile::new(Default::default())),
+        cortex_m::singleton!(: [u8; 16 * 1024] = [0; 16 * 1024]),
+    ) else {
+        r.check(name, false, format_args!("buffers made twice"));
+        return;
+    };
+    let flash: SimFlash<&'static mut [u8], 4, PAGE> = SimFlash::new(&mut bytes[..], 1);
+    let page = PAGE as u32;
+    let Ok(mut st) = FlashStore::open(flash, 0..3 * page, 3 * page..4 * page) else {
+        r.check(name, false, format_args!("flash store refused its areas"));
+        return;
+    };
+    // The demo ascent, stored as a pushed sounding is.
+    let stored = leeward_core::demo::sounding_into(profile)
+        .ok()
+        .and_then(|_| profile.encode(record).ok())
+        .map(|n| st.put(DataKind::Sounding, "TESSEL", &record[..n]));
+    if !matches!(stored, Some(Ok(()))) {
+        r.check(name, false, format_args!("could not store the sounding: {:?}", stored));
+        return;
+    }
+    let Some(app) = cortex_m::singleton!(: App = App::power_on(&mut st)) else {
+        r.check(name, false, format_args!("app made twice"));
+        return;
+    };
+    let _ = app.render(&mut *fb);
+    fb.mark_clean();
+    // Home → Data (up three rows) → the first dataset → its menu → Use (the fourth row).
+    press(
+        app,
+        &mut st,
+        fb,
+        &[
+            Key::Up,
+            Key::Up,
+            Key::Up,
+            Key::Ok,
+            Key::Ok,
+            Key::Down,
+            Key::Down,
+            Key::Down,
+        ],
+    );
+    key(r, app, &mut st, fb, Key::Ok, name, CALC_BUDGET);
+    let same = match (app.sounding(), demo_view()) {
+        (Some(v), Ok(d)) => *v == d,
+        _ => false,
+    };
+    r.check(
+        "firmware: the stored sounding's summary is the demo's",
+        app.screen() == Screen::SoundingResult(0)
+            && app.sounding_source().map(|n| n.as_str()) == Some("TESSEL")
+            && same,
+        format_args!("screen {:?}", app.screen()),
     );
 }
