@@ -307,6 +307,9 @@ impl Default for App {
 impl App {
     /// The state at power-on with these settings; forms hold the demo scenario's values
     /// (Tessel Col, column from the plain to the crest under the tropopause lid).
+    /// Not inlined, so that a caller can have it built straight where the app is kept
+    /// (the app is about 19 KB).
+    #[inline(never)]
     pub fn new(settings: Settings) -> Self {
         let s = &settings;
         let plain = demo::LID_M - demo::PLAIN_M;
@@ -391,6 +394,9 @@ impl App {
     /// Read the store's list. A blank store (no settings, no datasets: the first
     /// power-on) first receives the demo station set and the settings, so the Data list
     /// is not empty and the demo set is not put back after the user deletes it.
+    // Not inlined: an entry point of the board's loop, whose frame would otherwise
+    // gather the stack of every path below it (docs/performance.md, "Stack").
+    #[inline(never)]
     pub fn open_store<S: Storage>(&mut self, storage: &mut S) {
         if storage.load_settings().is_none() && storage.list().is_empty() {
             let mut buf = [0u8; MAX_STATION_SET_BYTES];
@@ -414,6 +420,9 @@ impl App {
     /// Carry out an effect that needs storage (the caller's loop does this after
     /// [`App::handle`], before drawing): settings are stored, a dataset operation is done
     /// and its outcome (a new screen, or a notice naming the problem) shown.
+    // Not inlined: an entry point of the board's loop, whose frame would otherwise
+    // gather the stack of every path below it (docs/performance.md, "Stack").
+    #[inline(never)]
     pub fn apply<S: Storage>(&mut self, effect: Effect, storage: &mut S) -> Result<(), S::Error> {
         match effect {
             Effect::SaveSettings => storage.save_settings(&self.settings)?,
@@ -564,6 +573,7 @@ impl App {
     }
 
     /// Make stored sounding `name` the Sounding task's current one and show its summary.
+    #[inline(never)]
     fn use_sounding<S: Storage>(&mut self, name: DataName, storage: &mut S) {
         match crate::sounding::stored_view_into(storage, &name, &mut self.sounding) {
             Ok(()) => {
@@ -592,6 +602,7 @@ impl App {
     }
 
     /// Put stored ridge `name` in the Ridge crossing form and open it.
+    #[inline(never)]
     fn use_ridge<S: Storage>(&mut self, name: DataName, storage: &mut S) {
         use crate::records::Record;
         let mut buf = [0u8; MAX_STATION_SET_BYTES];
@@ -733,6 +744,9 @@ impl App {
     }
 
     /// Apply one key press.
+    // Not inlined: an entry point of the board's loop, whose frame would otherwise
+    // gather the stack of every path below it (docs/performance.md, "Stack").
+    #[inline(never)]
     pub fn handle(&mut self, key: Key) -> Effect {
         if self.notice.take().is_some() {
             return Effect::Redraw;
@@ -903,6 +917,7 @@ impl App {
 
     /// Summarise the demo ascent for the Sounding task: its first page, or a notice over
     /// the home menu.
+    #[inline(never)]
     fn open_demo_sounding(&mut self) -> Screen {
         match crate::sounding::demo_view_into(&mut self.sounding) {
             Ok(()) => {
@@ -923,6 +938,7 @@ impl App {
     /// Entering the Ridge crossing form: the lid and N come from the sounding summary the
     /// first time; the wind from the newest Network result whenever there is a new one
     /// (otherwise the form keeps what the user typed).
+    #[inline(never)]
     fn enter_crossing(&mut self) {
         let s = self.settings;
         if !self.crossing_seeded {
@@ -993,6 +1009,7 @@ impl App {
     }
 
     /// Gather the form's values, call the core, and show its answer or its error.
+    #[inline(never)]
     fn compute(&mut self, task: Task) {
         let s = self.settings;
         let result = match task {
@@ -1043,6 +1060,7 @@ impl App {
         }
     }
 
+    #[inline(never)]
     fn station_list_key(&mut self, key: Key) -> Effect {
         let n = self.stations.len();
         match self.station_list.handle(key, n + 4) {
@@ -1105,6 +1123,7 @@ impl App {
         }
     }
 
+    #[inline(never)]
     fn station_key(&mut self, key: Key) -> Effect {
         let i = self.station as usize;
         let s = self.settings;
@@ -1144,6 +1163,7 @@ impl App {
         }
     }
 
+    #[inline(never)]
     fn network_result_key(&mut self, key: Key, n: u8) -> Effect {
         let last = NETWORK_PAGES - 1;
         let rows = self.network_used.len();
@@ -1229,6 +1249,7 @@ impl App {
     }
 
     /// Keys of the Data task's screens and of the Network task's Save and Load.
+    #[inline(never)]
     fn data_key(&mut self, key: Key) -> Effect {
         match self.screen {
             Screen::DataList => {
@@ -1360,6 +1381,7 @@ impl App {
         }
     }
 
+    #[inline(never)]
     fn settings_key(&mut self, key: Key) -> Effect {
         let (i, forward) = match self.settings_list.handle(key, 4) {
             ListOutcome::Chosen(i) => (i, true),

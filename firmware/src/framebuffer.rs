@@ -37,8 +37,11 @@ pub struct FrameBuffer {
     sent: [u32; HEIGHT],
     /// Lines written since the last flush (only they can differ from `sent`).
     touched: [u32; DIRTY_WORDS],
-    /// Lines to send whatever they hold (the display's contents are unknown).
-    stale: [u32; DIRTY_WORDS],
+    /// Lines whose contents on the display are known (sent since power-on or the last
+    /// invalidate); the others are sent whatever they hold. Kept as "known" rather than
+    /// "stale" so that a new buffer is all zero bytes: a `static` of it then takes no
+    /// flash for its initial value and needs no copy on the stack to be made.
+    known: [u32; DIRTY_WORDS],
 }
 
 impl Default for FrameBuffer {
@@ -55,7 +58,7 @@ impl FrameBuffer {
             bits: [[0; LINE_BYTES]; HEIGHT],
             sent: [0; HEIGHT],
             touched: [0; DIRTY_WORDS],
-            stale: Self::every_line(),
+            known: [0; DIRTY_WORDS],
         }
     }
 
@@ -78,7 +81,7 @@ impl FrameBuffer {
     /// Mark every line to be sent at the next flush, whatever it holds (after the display
     /// lost its contents, or now and then to repair a change the CRC could not see).
     pub fn invalidate(&mut self) {
-        self.stale = Self::every_line();
+        self.known = [0; DIRTY_WORDS];
     }
 
     /// The pixel at (x, y); `None` outside the display.
@@ -98,7 +101,7 @@ impl FrameBuffer {
     /// Whether line `y` differs from what the display was last sent.
     pub fn is_dirty(&self, y: usize) -> bool {
         y < HEIGHT
-            && (Self::flag(&self.stale, y)
+            && (!Self::flag(&self.known, y)
                 || (Self::flag(&self.touched, y) && Self::crc(&self.bits[y]) != self.sent[y]))
     }
 
@@ -115,7 +118,7 @@ impl FrameBuffer {
     ) -> Result<usize, E> {
         let mut sent = 0;
         for y in 0..HEIGHT {
-            let stale = Self::flag(&self.stale, y);
+            let stale = !Self::flag(&self.known, y);
             if !stale && !Self::flag(&self.touched, y) {
                 continue;
             }
@@ -124,7 +127,7 @@ impl FrameBuffer {
                 // HEIGHT ≤ 255, so the line number fits a byte (the display's address).
                 send(y as u8, &self.bits[y])?;
                 self.sent[y] = crc;
-                self.stale[y / 32] &= !(1 << (y % 32));
+                self.known[y / 32] |= 1 << (y % 32);
                 sent += 1;
             }
             self.touched[y / 32] &= !(1 << (y % 32));
@@ -139,7 +142,7 @@ impl FrameBuffer {
             *sent = Self::crc(line);
         }
         self.touched = [0; DIRTY_WORDS];
-        self.stale = [0; DIRTY_WORDS];
+        self.known = Self::every_line();
     }
 
     fn set(&mut self, x: usize, y: usize, on: bool) {

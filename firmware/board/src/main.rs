@@ -56,6 +56,7 @@ use leeward_board_logic::pump::Watched;
 use leeward_board_logic::recovery::{Choice, Prompt};
 use leeward_firmware::flash::{FlashStore, TwoFlash};
 use leeward_firmware::link::{LinkServer, STAGING_BYTES};
+use leeward_firmware::storage::Storage;
 use leeward_firmware::{framebuffer::FrameBuffer, App, Effect, Key};
 
 /// The store on the internal flash: the map in sectors 1-3, the log in sector 7.
@@ -235,6 +236,18 @@ fn open_store(ctl: &'static RefCell<pac::FLASH>) -> Option<Store> {
     FlashStore::open(TwoFlash { map, log }, MAP_AREA, LOG_AREA).ok()
 }
 
+/// The frame buffer, in a static of its own: a new buffer is all zero bytes, so it lies
+/// in .bss, takes no flash and is not built on the stack first (as `singleton!` would).
+fn frame_buffer() -> &'static mut FrameBuffer {
+    static mut FB: FrameBuffer = FrameBuffer::new();
+    static TAKEN: AtomicBool = AtomicBool::new(false);
+    if TAKEN.swap(true, Ordering::AcqRel) {
+        halt("frame buffer already made");
+    }
+    // SAFETY: `TAKEN` lets this run once, so the one `&mut` to FB is the one returned.
+    unsafe { &mut *core::ptr::addr_of_mut!(FB) }
+}
+
 #[cortex_m_rt::entry]
 fn main() -> ! {
     let (Some(dp), Some(cp)) = (pac::Peripherals::take(), cortex_m::Peripherals::take()) else {
@@ -316,9 +329,7 @@ fn main() -> ! {
         defmt::warn!("VCOM timer did not start");
     }
 
-    let Some(fb) = cortex_m::singleton!(: FrameBuffer = FrameBuffer::new()) else {
-        halt("frame buffer already made");
-    };
+    let fb = frame_buffer();
     panel.command(|lcd| lcd.clear_command());
     disp.set_high();
 
@@ -327,12 +338,12 @@ fn main() -> ! {
     else {
         halt("flash taken twice");
     };
-    let Some(opened) = open_store(flash_ctl) else {
+    // The store lives in this frame, which never returns, rather than in a static:
+    // no copy of it on the way there.
+    let Some(mut store) = open_store(flash_ctl) else {
         halt("flash layout refused");
     };
-    let Some(storage) = cortex_m::singleton!(: Store = opened) else {
-        halt("store already made");
-    };
+    let storage = &mut store;
     let health = storage.health();
     defmt::info!("store: {}", health);
     let mut debouncer = Debouncer::new();
@@ -354,9 +365,13 @@ fn main() -> ! {
             defmt::info!("store after erasing: {}", storage.health());
         }
     }
-    let Some(app) = cortex_m::singleton!(: App = App::power_on(storage)) else {
-        halt("app already made");
-    };
+    // The app lives in this frame, which never returns: made here, it is built in place
+    // (a `static` would take it through a 19 KB copy on the stack). size.py counts this
+    // frame with the static RAM.
+    // App::power_on's two steps written out: through power_on the app is made in its
+    // frame and then copied into this one, 19 KB more stack for good.
+    let mut app = App::new(storage.load_settings().unwrap_or_default());
+    app.open_store(storage);
 
     // The data link on USB (none without the crystal's clock).
     let mut usb = None;
@@ -390,7 +405,8 @@ fn main() -> ! {
             halt("USB strings refused");
         };
         let server = LinkServer::new(staging);
-        usb = cortex_m::singleton!(: link::UsbLink = link::UsbLink::new(builder.build(), serial, server));
+        // In this frame, as the app and the store are: no static, no copy on the way.
+        usb = Some(link::UsbLink::new(builder.build(), serial, server));
     }
     if app.render(fb).is_err() {
         defmt::warn!("first render failed");
@@ -446,7 +462,7 @@ fn main() -> ! {
                 arm_wake(&mut rows, &mut cols, &mut exti);
             }
         }
-        if let Some(link) = usb.as_deref_mut() {
+        if let Some(link) = usb.as_mut() {
             if link::USB_EVENT.swap(false, Ordering::AcqRel) || link.wants_more() {
                 let mut watched = Watched::new(&mut *storage);
                 link.service(&mut watched);
@@ -462,7 +478,7 @@ fn main() -> ! {
         }
         // Check the flags with interrupts off, so none can slip in between the check and
         // the WFI; a pending interrupt still ends the WFI.
-        let link_more = usb.as_deref().is_some_and(|l| l.wants_more());
+        let link_more = usb.as_ref().is_some_and(|l| l.wants_more());
         cortex_m::interrupt::free(|_| {
             let busy = KEY_EDGE.load(Ordering::Acquire)
                 || VCOM_TICK.load(Ordering::Acquire)

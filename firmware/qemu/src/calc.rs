@@ -588,10 +588,15 @@ pub fn breakdown(r: &mut Report) {
         let (m, _) = measure(|| heights(black_box(&prof), None, 20.0));
         part(r, "demo ascent: hypsometric heights only", &m);
     }
-    let (m, _) = measure(leeward_firmware::sounding::demo_view);
-    part(
-        r,
-        "firmware sounding::demo_view (build + summary + view)",
-        &m,
-    );
+    // Into a view held in a static, as the app holds it (the device's path).
+    if let Some(view) = cortex_m::singleton!(: leeward_firmware::sounding::SoundingView =
+        leeward_firmware::sounding::SoundingView::blank())
+    {
+        let (m, _) = measure(|| leeward_firmware::sounding::demo_view_into(black_box(&mut *view)));
+        part(
+            r,
+            "firmware sounding::demo_view_into (build + summary + view, in place)",
+            &m,
+        );
+    }
 }

@@ -8,8 +8,8 @@ use embedded_graphics::pixelcolor::BinaryColor;
 use embedded_graphics::prelude::{DrawTarget, OriginDimensions, Pixel, Size};
 
 use leeward_firmware::app::Screen;
-use leeward_firmware::framebuffer::FrameBuffer;
 use leeward_firmware::flash::{sim::SimFlash, FlashStore};
+use leeward_firmware::framebuffer::FrameBuffer;
 use leeward_firmware::records::Record;
 use leeward_firmware::sounding::demo_view;
 use leeward_firmware::storage::{DataKind, MemStorage, Storage};
@@ -266,7 +266,11 @@ fn stored_sounding(r: &mut Report, fb: &mut FrameBuffer) {
         .and_then(|_| profile.encode(record).ok())
         .map(|n| st.put(DataKind::Sounding, "TESSEL", &record[..n]));
     if !matches!(stored, Some(Ok(()))) {
-        r.check(name, false, format_args!("could not store the sounding: {:?}", stored));
+        r.check(
+            name,
+            false,
+            format_args!("could not store the sounding: {:?}", stored),
+        );
         return;
     }
     let Some(app) = cortex_m::singleton!(: App = App::power_on(&mut st)) else {
@@ -301,6 +305,28 @@ fn stored_sounding(r: &mut Report, fb: &mut FrameBuffer) {
         app.screen() == Screen::SoundingResult(0)
             && app.sounding_source().map(|n| n.as_str()) == Some("TESSEL")
             && same,
+        format_args!("screen {:?}", app.screen()),
+    );
+    // The Ridge crossing's Compute (both f32 tracks and the first result page): counted
+    // as a part, with no budget (its flat-ground track runs far: docs/performance.md),
+    // but its stack is among the deepest the device has, so it is measured too.
+    press(
+        app,
+        &mut st,
+        fb,
+        &[Key::Menu, Key::Digit(5), Key::Ok, Key::Up],
+    );
+    let (m, _) = measure(|| {
+        let e = app.handle(black_box(Key::Ok));
+        let _ = app.apply(e, &mut st);
+        app.render(&mut *fb)
+    });
+    let name = "key press + redraw: Compute in the Ridge crossing form";
+    r.stack(name, &m);
+    hprintln!("part {:>9} {:>6} {}", m.instructions, m.stack_bytes, name);
+    r.check(
+        name,
+        app.screen() == Screen::CrossingResult(0) && app.crossing_result().is_some(),
         format_args!("screen {:?}", app.screen()),
     );
 }

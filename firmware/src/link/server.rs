@@ -77,6 +77,8 @@ impl<'b> LinkServer<'b> {
 
     /// Take bytes from the serial port; each complete frame is answered through `send`
     /// (a whole reply frame, its zero included).
+    // Not inlined, so that the board's loop does not carry the link's stack in its frame.
+    #[inline(never)]
     pub fn feed<S: Storage>(&mut self, bytes: &[u8], store: &mut S, send: &mut impl FnMut(&[u8])) {
         // A frame is copied out of the splitter before it is answered, so the answer may
         // use the rest of `self`; one buffer for the whole call, not one per byte.
