@@ -48,6 +48,18 @@ fn ask<S: Storage>(dev: &mut LinkServer<'_>, st: &mut S, seq: u16, r: &Request<'
     replies[0].1.clone()
 }
 
+/// Open the session with a Hello of this protocol; its reply.
+fn open_session<S: Storage>(dev: &mut LinkServer<'_>, st: &mut S, seq: u16) -> String {
+    ask(
+        dev,
+        st,
+        seq,
+        &Request::Hello {
+            version: PROTOCOL_VERSION,
+        },
+    )
+}
+
 fn err(e: LinkError) -> String {
     format!("{:?}", Reply::Error { error: e })
 }
@@ -109,14 +121,7 @@ fn a_session_lists_puts_gets_and_deletes() {
             device: PROTOCOL_VERSION
         })
     );
-    let hello = ask(
-        &mut dev,
-        &mut st,
-        3,
-        &Request::Hello {
-            version: PROTOCOL_VERSION,
-        },
-    );
+    let hello = open_session(&mut dev, &mut st, 3);
     assert!(
         hello.starts_with(&format!(
             "Hello {{ version: {PROTOCOL_VERSION}, max_dataset: {}",
@@ -234,14 +239,7 @@ fn refused_puts_store_nothing() {
     let mut st = MemStorage::new();
     let mut staging = [0u8; 600];
     let mut dev = LinkServer::new(&mut staging);
-    ask(
-        &mut dev,
-        &mut st,
-        1,
-        &Request::Hello {
-            version: PROTOCOL_VERSION,
-        },
-    );
+    open_session(&mut dev, &mut st, 1);
     let data = dataset(500, 2);
     let begin = |name, kind, total, crc| Request::PutBegin {
         name,
@@ -367,14 +365,7 @@ fn refused_puts_store_nothing() {
     full.put(DataKind::Sounding, "BIG", &[0u8; 4000]).unwrap();
     let mut staging = [0u8; 600];
     let mut dev = LinkServer::new(&mut staging);
-    ask(
-        &mut dev,
-        &mut full,
-        1,
-        &Request::Hello {
-            version: PROTOCOL_VERSION,
-        },
-    );
+    open_session(&mut dev, &mut full, 1);
     let r = ask(&mut dev, &mut full, 2, &begin("K", 2, 500, crc32(&data)));
     let free = full.free_bytes();
     let need = match full.put(DataKind::Sounding, "K", &data) {
@@ -632,15 +623,12 @@ fn a_long_dataset_streams_to_flash_through_one_store_part_of_staging() {
     ));
     let mut staging = [0u8; STAGING_BYTES];
     let mut dev = LinkServer::new(&mut staging);
-    let hello = ask(
-        &mut dev,
-        &mut st,
-        1,
-        &Request::Hello {
-            version: PROTOCOL_VERSION,
-        },
+    let hello = open_session(&mut dev, &mut st, 1);
+    let max = format!(
+        "max_dataset: {}",
+        leeward_firmware::flash::MAX_DATASET_BYTES
     );
-    assert!(hello.contains("max_dataset: 16384"), "{hello}");
+    assert!(hello.contains(&max), "{hello}");
     // Ten times the staging buffer, in the link's pieces.
     let data = dataset(10 * STAGING_BYTES + 77, 11);
     assert_eq!(
@@ -695,14 +683,7 @@ fn a_long_dataset_streams_to_flash_through_one_store_part_of_staging() {
     dev.reset(&mut st);
     assert_eq!(st.list().len(), 1);
     assert_eq!(st.free_bytes(), free);
-    ask(
-        &mut dev,
-        &mut st,
-        60,
-        &Request::Hello {
-            version: PROTOCOL_VERSION,
-        },
-    );
+    open_session(&mut dev, &mut st, 60);
     assert!(push(&mut dev, &mut st, "HALF", &data[..5000]).starts_with("Stored"));
     // What was stored survives a reboot.
     let mut again = open(st.into_flash());
@@ -721,14 +702,7 @@ fn a_change_made_on_the_device_during_a_put_ends_it_cleanly() {
     let mut st = MemStorage::new();
     let mut staging = [0u8; 256];
     let mut dev = LinkServer::new(&mut staging);
-    ask(
-        &mut dev,
-        &mut st,
-        1,
-        &Request::Hello {
-            version: PROTOCOL_VERSION,
-        },
-    );
+    open_session(&mut dev, &mut st, 1);
     let data = dataset(600, 4);
     let begin = Request::PutBegin {
         name: "K",

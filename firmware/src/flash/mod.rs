@@ -481,16 +481,8 @@ impl<A: Areas> FlashStore<A> {
         }
         let mut digest = CRC32.digest();
         for k in 0..c.chunks() {
-            let want = chunk.min(len - k * chunk);
-            let key = chunk_key(i, c.gen, k);
-            let got = fetch(self.flash.map(), &self.map_range, &mut self.buf, key)?
-                .ok_or(StoreError::Damaged)?;
-            let (g, data) = got
-                .split_at_checked(CHUNK_HEAD)
-                .ok_or(StoreError::Damaged)?;
-            if g != c.gen.to_le_bytes() || data.len() != want {
-                return Err(StoreError::Damaged);
-            }
+            let data = self.chunk_data(i, c, k)?;
+            let want = data.len();
             digest.update(data);
             if let Some(o) = out.as_deref_mut() {
                 o.get_mut(k * chunk..k * chunk + want)
@@ -502,6 +494,20 @@ impl<A: Areas> FlashStore<A> {
             return Err(StoreError::Damaged);
         }
         Ok(())
+    }
+
+    /// Chunk `k` of `c` in slot `i`, read into the working buffer and checked to be of
+    /// `c`'s generation and of its length: its data.
+    fn chunk_data(&mut self, i: usize, c: &Commit, k: usize) -> Result<&[u8], StoreError> {
+        let chunk = c.chunk as usize;
+        let want = chunk.min((c.len as usize).saturating_sub(k * chunk));
+        let key = chunk_key(i, c.gen, k);
+        let got = fetch(self.flash.map(), &self.map_range, &mut self.buf, key)?
+            .ok_or(StoreError::Damaged)?;
+        match got.split_at_checked(CHUNK_HEAD) {
+            Some((g, data)) if g == c.gen.to_le_bytes() && data.len() == want => Ok(data),
+            _ => Err(StoreError::Damaged),
+        }
     }
 
     fn boot_log(&mut self) {
@@ -949,20 +955,7 @@ impl<A: Areas> Storage for FlashStore<A> {
         let mut n = 0;
         while n < buf.len() && at < head.len {
             let k = at / chunk;
-            let want = chunk.min(head.len - k * chunk);
-            let got = fetch(
-                self.flash.map(),
-                &self.map_range,
-                &mut self.buf,
-                chunk_key(i, c.gen, k),
-            )?
-            .ok_or(StoreError::Damaged)?;
-            let (g, data) = got
-                .split_at_checked(CHUNK_HEAD)
-                .ok_or(StoreError::Damaged)?;
-            if g != c.gen.to_le_bytes() || data.len() != want {
-                return Err(StoreError::Damaged);
-            }
+            let data = self.chunk_data(i, &c, k)?;
             let from = &data[at - k * chunk..];
             let m = from.len().min(buf.len() - n);
             buf[n..n + m].copy_from_slice(&from[..m]);
@@ -1023,8 +1016,9 @@ impl<A: Areas> Storage for FlashStore<A> {
             });
         }
         let mut done = f.done;
+        let mut wrote = Ok(());
         for part in bytes.chunks(chunk) {
-            let wrote = if part.len() == chunk || done + part.len() == f.len {
+            wrote = if part.len() == chunk || done + part.len() == f.len {
                 self.write_chunk(f.slot, f.gen, done / chunk, part)
             } else {
                 Err(StoreError::PartSize {
@@ -1032,17 +1026,18 @@ impl<A: Areas> Storage for FlashStore<A> {
                     part: chunk,
                 })
             };
-            if let Err(e) = wrote {
-                if let Some(open) = self.filling.as_mut() {
-                    open.done = done;
-                }
-                self.end_filling();
-                return Err(self.full(e, f.len));
+            if wrote.is_err() {
+                break;
             }
             done += part.len();
         }
         if let Some(open) = self.filling.as_mut() {
             open.done = done;
+        }
+        if let Err(e) = wrote {
+            // What was written of it is buried.
+            self.end_filling();
+            return Err(self.full(e, f.len));
         }
         Ok(())
     }

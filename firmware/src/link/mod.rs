@@ -9,9 +9,9 @@
 //! The host sends one request and waits for its reply; every request carries a sequence
 //! number that the reply repeats. A damaged, truncated, oversized or unknown frame gets an
 //! error reply and changes nothing. A dataset is sent in chunks, which go to the store as
-//! they arrive; it is stored only when all of it has arrived and its CRC-32 matches; the
-//! device then reads it back and reports the stored dataset's CRC-32 for the host to
-//! compare.
+//! they arrive; it is stored only when all of it has arrived and what the store reads
+//! back has the CRC-32 announced; the device reports the stored dataset's size and CRC-32
+//! for the host to compare.
 
 pub mod frame;
 pub mod protocol;

@@ -19,7 +19,6 @@ const _: () = assert!(STAGING_BYTES >= MAX_CHUNK);
 /// A dataset being received.
 #[derive(Debug, Clone)]
 struct Put {
-    name: DataName,
     total: u32,
     crc: u32,
     next: u32,
@@ -246,10 +245,7 @@ impl<'b> LinkServer<'b> {
                     return Err(LinkError::StoreFailed);
                 }
                 store.put_begin(kind, name, total as usize)?;
-                let mut n = DataName::new();
-                let _ = n.push_str(name);
                 self.put = Some(Put {
-                    name: n,
                     total,
                     crc,
                     next: 0,
@@ -288,14 +284,17 @@ impl<'b> LinkServer<'b> {
                     self.put = Some(put);
                     return Err(LinkError::Incomplete { got, total });
                 }
+                // `put_end` reads back what the store holds and commits it only if it has
+                // the announced CRC, so the reply reports the stored dataset, not what
+                // arrived.
                 match store.put_end(put.crc) {
-                    Ok(()) => {}
-                    Err(StoreError::Damaged) => return Err(LinkError::CrcMismatch),
-                    Err(e) => return Err(e.into()),
+                    Ok(()) => Ok(Answer::Plain(Reply::Stored {
+                        bytes: put.total,
+                        crc: put.crc,
+                    })),
+                    Err(StoreError::Damaged) => Err(LinkError::CrcMismatch),
+                    Err(e) => Err(e.into()),
                 }
-                // Read it back: the host compares what the store holds, not what arrived.
-                let (bytes, crc) = read_back(store, &put.name, self.staging)?;
-                Ok(Answer::Plain(Reply::Stored { bytes, crc }))
             }
             Request::Delete { name } => {
                 self.drop_put(store);
@@ -388,27 +387,6 @@ fn hand_over<S: Storage>(
         put.held = 0;
     }
     Ok(())
-}
-
-/// Read dataset `name` through `staging`: its length and the CRC-32 of what was read.
-fn read_back<S: Storage>(
-    store: &mut S,
-    name: &str,
-    staging: &mut [u8],
-) -> Result<(u32, u32), StoreError> {
-    let mut digest = crate::flash::CRC32.digest();
-    let mut at = 0;
-    loop {
-        let (head, n) = store.read_at(name, at, staging)?;
-        digest.update(&staging[..n]);
-        at += n;
-        if at >= head.len {
-            return Ok((len_u32(at), digest.finalize()));
-        }
-        if n == 0 {
-            return Err(StoreError::Damaged);
-        }
-    }
 }
 
 fn len_u32(n: usize) -> u32 {
